@@ -1,0 +1,4 @@
+package demo
+
+// conditioningSeeders stores the conditioning records of the demo.
+func conditioningSeeders() map[string]eventSeeder { return nil }

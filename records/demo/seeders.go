@@ -1,0 +1,16 @@
+package demo
+
+import "maps"
+
+// eventSeeders maps each event kind of the scenario to the function that
+// stores it. Each record feature contributes its kinds from its own file.
+func eventSeeders() map[string]eventSeeder {
+	all := map[string]eventSeeder{}
+	for _, part := range []map[string]eventSeeder{
+		conditioningSeeders(),
+		clinicalSeeders(),
+	} {
+		maps.Copy(all, part)
+	}
+	return all
+}

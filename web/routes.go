@@ -1,0 +1,61 @@
+package web
+
+import (
+	"net/http"
+
+	"github.com/labstack/echo/v4"
+
+	"aloft/records"
+)
+
+func (s *Server) routes() {
+	e := s.echo
+	e.GET("/healthz", s.handleHealth)
+	e.GET("/static/*", s.handleStatic)
+	e.GET("/login", s.handleLoginForm)
+	e.POST("/login", s.handleLogin)
+	e.POST("/logout", s.handleLogout)
+	e.GET("/setup", s.handleSetupForm)
+	e.POST("/setup", s.handleSetup)
+	e.GET("/cautions", s.handleCautions)
+
+	app := e.Group("", s.requireLogin)
+	app.GET("/", func(c echo.Context) error { return c.Redirect(http.StatusSeeOther, "/patients") })
+	app.GET("/patients", s.handlePatients)
+	app.GET("/intake", s.handleIntakeForm)
+	app.POST("/intake", s.handleIntake)
+	app.GET("/patients/:case", s.handlePatient)
+
+	admin := app.Group("", requireRole(records.RoleAdmin))
+	admin.GET("/users", s.handleUsers)
+	admin.POST("/users", s.handleAddUser)
+	admin.POST("/users/:id/disable", s.handleDisableUser)
+	admin.POST("/users/:id/enable", s.handleEnableUser)
+	admin.POST("/users/:id/password", s.handleResetPassword)
+
+	s.sections()
+	for _, add := range s.featureRoutes() {
+		add(app)
+	}
+}
+
+// featureRoutes lists the route sets of the record features, each adding
+// its own routes to the logged-in group.
+func (s *Server) featureRoutes() []func(*echo.Group) {
+	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes}
+}
+
+// sections lists, in page order, the feature blocks of the patient page and
+// of the patient list.
+func (s *Server) sections() {
+	s.patientSections = append(s.patientSections, s.conditioningSections()...)
+	s.patientSections = append(s.patientSections, s.clinicalSections()...)
+	s.patientsExtras = append(s.patientsExtras, s.clinicalExtras()...)
+}
+
+func (s *Server) handleHealth(c echo.Context) error {
+	if err := s.store.DB().PingContext(c.Request().Context()); err != nil {
+		return c.JSON(http.StatusServiceUnavailable, map[string]string{"status": "database unavailable"})
+	}
+	return c.JSON(http.StatusOK, map[string]string{"status": "ok"})
+}

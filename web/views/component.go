@@ -1,0 +1,5 @@
+package views
+
+import "github.com/a-h/templ"
+
+type templComponent = templ.Component
