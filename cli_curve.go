@@ -140,12 +140,39 @@ func flagErrors(fs *flag.FlagSet, err error) string {
 
 // writeCurveText writes the readable summary of r.
 func writeCurveText(out io.Writer, r assess.FlightResult) error {
+	sections := curveSections(r)
+	width := 0
+	for _, s := range sections {
+		for _, r := range s.rows {
+			width = max(width, utf8.RuneCountInString(r.label))
+		}
+	}
+	var b strings.Builder
 	p := r.Params
+	fmt.Fprintf(&b, "Flight model, parameter set %s (k %g, C_Db %g, C_pro %g, η %g, R %g)\n",
+		p.Name, p.K, p.CDb, p.CPro, p.Eta, p.R)
+	for _, s := range sections {
+		fmt.Fprintf(&b, "\n%s\n", s.title)
+		for _, r := range s.rows {
+			fmt.Fprintf(&b, "  %-*s  %s\n", width, r.label, r.value)
+		}
+	}
+	b.WriteString("\nNotes\n")
+	for _, n := range r.Notes {
+		fmt.Fprintf(&b, "  - %s\n", n)
+	}
+	b.WriteString("\nAdvisory only: the veterinarian and the licensed rehabilitator decide.\n")
+	_, err := io.WriteString(out, b.String())
+	return err
+}
+
+// curveSections lays out r's numbers with their units, in sections.
+func curveSections(r assess.FlightResult) []section {
 	area := fmt.Sprintf("%.1f cm²", r.AreaM2*1e4)
 	if r.WingAreaEstimated {
 		area += " (estimated from span)"
 	}
-	sections := []section{
+	return []section{
 		{"Air and shape", []row{
 			{"air density", fmt.Sprintf("%.4f kg/m³", r.AirDensityKgM3)},
 			{"wing area", area},
@@ -180,28 +207,6 @@ func writeCurveText(out io.Writer, r assess.FlightResult) error {
 			{"muscle condition", map[bool]string{true: "assumed healthy", false: "scored"}[r.MuscleAssumed]},
 			{"still-air range", optional(r.StillAirRangeKm, "%.0f km")}}},
 	}
-	width := 0
-	for _, s := range sections {
-		for _, r := range s.rows {
-			width = max(width, utf8.RuneCountInString(r.label))
-		}
-	}
-	var b strings.Builder
-	fmt.Fprintf(&b, "Flight model, parameter set %s (k %g, C_Db %g, C_pro %g, η %g, R %g)\n",
-		p.Name, p.K, p.CDb, p.CPro, p.Eta, p.R)
-	for _, s := range sections {
-		fmt.Fprintf(&b, "\n%s\n", s.title)
-		for _, r := range s.rows {
-			fmt.Fprintf(&b, "  %-*s  %s\n", width, r.label, r.value)
-		}
-	}
-	b.WriteString("\nNotes\n")
-	for _, n := range r.Notes {
-		fmt.Fprintf(&b, "  - %s\n", n)
-	}
-	b.WriteString("\nAdvisory only: the veterinarian and the licensed rehabilitator decide.\n")
-	_, err := io.WriteString(out, b.String())
-	return err
 }
 
 type section struct {

@@ -3,9 +3,9 @@ package main
 import (
 	"context"
 	"embed"
-	iofs "io/fs"
 	"errors"
 	"fmt"
+	iofs "io/fs"
 	"log/slog"
 	"net"
 	"net/http"

@@ -41,7 +41,9 @@ func startDemo(t *testing.T, extra ...string) string {
 	var out, errb syncBuffer
 	done := make(chan int, 1)
 	args := append([]string{"demo", "--addr", "127.0.0.1:0"}, extra...)
-	go func() { done <- runCLI(ctx, args, cmdIO{Stdout: &out, Stderr: &errb, Getenv: func(string) string { return "" }}) }()
+	go func() {
+		done <- runCLI(ctx, args, cmdIO{Stdout: &out, Stderr: &errb, Getenv: func(string) string { return "" }})
+	}()
 	t.Cleanup(func() {
 		cancel()
 		select {

@@ -76,7 +76,7 @@ func TestIntake_Validation(t *testing.T) {
 			}
 			resp, doc := a.post("/intake", f)
 			wantStatus(t, resp, http.StatusUnprocessableEntity)
-			msg := doc.Find("#" + tc.field).NextFilteredUntil(".field-error", "label").First().Text()
+			msg := doc.Find("#"+tc.field).NextFilteredUntil(".field-error", "label").First().Text()
 			if msg == "" {
 				msg = doc.Find(".field-error").Text()
 			}

@@ -19,10 +19,10 @@ import (
 
 // Server is the Aloft web application for one centre.
 type Server struct {
-	store   *records.Store
-	species *assess.SpeciesTable
-	cfg     Config
-	log     *slog.Logger
+	store    *records.Store
+	species  *assess.SpeciesTable
+	cfg      Config
+	log      *slog.Logger
 	now      func() time.Time
 	echo     *echo.Echo
 	throttle *loginThrottle

@@ -30,7 +30,7 @@ type LoginForm struct {
 // SetupForm is the first-run set-up form.
 type SetupForm struct {
 	CentreName, Address, Elevation, Username, DisplayName string
-	Errors                                               assess.ValidationErrors
+	Errors                                                assess.ValidationErrors
 }
 
 func errFor(errs assess.ValidationErrors, field string) string { return errs.Field(field) }

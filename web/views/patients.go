@@ -21,13 +21,13 @@ type PatientsPage struct {
 
 // IntakeForm is the admission form, holding exactly what the person typed.
 type IntakeForm struct {
-	Species, AgeClass, Sex, FoundDate, FoundPlace, FoundLat, FoundLon   string
-	FinderName, FinderContact, Reason, IntakeCondition, IntakeMassG     string
-	MassNote                                                            string
-	ConfirmMass                                                         bool
-	NeedsConfirm                                                        bool // the mass is implausible for the species: ask for a reason
-	SpeciesOptions                                                      []SpeciesOption
-	Errors                                                              assess.ValidationErrors
+	Species, AgeClass, Sex, FoundDate, FoundPlace, FoundLat, FoundLon string
+	FinderName, FinderContact, Reason, IntakeCondition, IntakeMassG   string
+	MassNote                                                          string
+	ConfirmMass                                                       bool
+	NeedsConfirm                                                      bool // the mass is implausible for the species: ask for a reason
+	SpeciesOptions                                                    []SpeciesOption
+	Errors                                                            assess.ValidationErrors
 }
 
 // SpeciesOption is one entry of the species datalist.
