@@ -14,7 +14,7 @@ import (
 	"aloft/assess"
 )
 
-const curveSynopsis = "curve --mass-g G --span-mm MM --area-cm2 A [--elevation-m M] [--temp-c C] " +
+const curveSynopsis = "curve (--mass-g G --span-mm MM --area-cm2 A | --species NAME [--sex female|male] [--mass-g G] [--span-mm MM] [--area-cm2 A]) [--elevation-m M] [--temp-c C] " +
 	"[--passerine] [--migrant] [--fat-score N --fat-scale 0-8|0-5] [--muscle-score N] " +
 	"[--params " + "pennycuick2008|pennycuick2013] [--json]"
 
@@ -26,6 +26,7 @@ type curveFlags struct {
 	fatScore, muscleScore              optInt
 	fatScale, params                   string
 	json                               bool
+	species, sex                       string
 }
 
 // register declares the flags on fs.
@@ -42,6 +43,48 @@ func (f *curveFlags) register(fs *flag.FlagSet) {
 	fs.Var(&f.muscleScore, "muscle-score", "pectoral muscle `score`, 0 to 3")
 	fs.StringVar(&f.params, "params", "", "parameter set: "+strings.Join(assess.ParamSetNames, " or ")+" (default "+assess.ParamSetNames[0]+")")
 	fs.BoolVar(&f.json, "json", false, "print one JSON object")
+	fs.StringVar(&f.species, "species", "", "compare with a healthy bird of this species (scientific or common `name`); mass, span and area default to its reference")
+	fs.StringVar(&f.sex, "sex", "unknown", "the bird's sex, for the species' reference mass: female, male or unknown")
+}
+
+// curveOutput is the JSON of `aloft curve`: the flight result, and with
+// --species the species compared with and its normal launch mode.
+type curveOutput struct {
+	assess.FlightResult
+	Species    *curveSpecies      `json:"species,omitempty"`
+	LaunchMode *assess.LaunchMode `json:"launch_mode,omitempty"`
+}
+
+type curveSpecies struct {
+	ScientificName string `json:"scientific_name"`
+	CommonName     string `json:"common_name"`
+}
+
+// withSpecies fills in the species' reference for sex: unset mass, span and
+// area take the reference's values; the passerine and migrant flags its own.
+func (f *curveFlags) withSpecies(in *assess.FlightInput, sp *assess.Species, set map[string]bool) error {
+	sex := assess.Sex(f.sex)
+	if !sex.Valid() {
+		return &assess.ValidationError{Field: "sex", Value: f.sex, Message: "female, male or unknown"}
+	}
+	ref := sp.Reference(sex)
+	in.Reference = &ref
+	if !set["mass-g"] {
+		in.MassKg = ref.MassKg
+	}
+	if !set["span-mm"] {
+		in.SpanM = ref.SpanM
+	}
+	if !set["area-cm2"] {
+		if set["span-mm"] {
+			in.AreaM2 = 0 // estimated from the reference by geometric similarity, flagged
+		} else {
+			in.AreaM2 = ref.AreaM2
+		}
+	}
+	in.Passerine = in.Passerine || sp.Passerine
+	in.Migrant = in.Migrant || sp.Migrant
+	return nil
 }
 
 // flightInput converts the flags to the engine's input, SI inside. A species
@@ -85,16 +128,36 @@ func cmdCurve(ctx context.Context, args []string, cio cmdIO) int {
 	}
 	set := map[string]bool{}
 	fs.Visit(func(fl *flag.Flag) { set[fl.Name] = true })
-	for _, name := range []string{"mass-g", "span-mm", "area-cm2"} {
-		if !set[name] {
-			return usageErr(cio, "curve", "--%s is required", name)
+	var sp *assess.Species
+	if f.species != "" {
+		table, err := assess.LoadSpecies()
+		if err != nil {
+			return failErr(cio, "curve", err)
+		}
+		if sp, err = table.Find(f.species); err != nil {
+			return usageErr(cio, "curve", "--species: no species named %q (try aloft species list)", f.species)
+		}
+	} else {
+		for _, name := range []string{"mass-g", "span-mm", "area-cm2"} {
+			if !set[name] {
+				return usageErr(cio, "curve", "--%s is required (or give --species)", name)
+			}
 		}
 	}
 	in, err := f.flightInput()
+	if err == nil && sp != nil {
+		err = f.withSpecies(&in, sp, set)
+	}
 	if err == nil {
 		var r assess.FlightResult
 		if r, err = assess.Flight(in); err == nil {
-			return printCurve(cio, r, f.json)
+			out := curveOutput{FlightResult: r}
+			if sp != nil {
+				out.Species = &curveSpecies{ScientificName: sp.ScientificName, CommonName: sp.CommonName}
+				lm := sp.LaunchMode
+				out.LaunchMode = &lm
+			}
+			return printCurve(cio, out, f.json)
 		}
 	}
 	var ve *assess.ValidationError
@@ -106,12 +169,15 @@ func cmdCurve(ctx context.Context, args []string, cio cmdIO) int {
 }
 
 // printCurve writes r as JSON or as a summary.
-func printCurve(cio cmdIO, r assess.FlightResult, asJSON bool) int {
+func printCurve(cio cmdIO, r curveOutput, asJSON bool) int {
 	var err error
 	if asJSON {
 		err = json.NewEncoder(cio.Stdout).Encode(r)
 	} else {
-		err = writeCurveText(cio.Stdout, r)
+		if r.Species != nil {
+			fmt.Fprintf(cio.Stdout, "Compared with a healthy %s (%s); normal launch: %s\n", r.Species.CommonName, r.Species.ScientificName, *r.LaunchMode)
+		}
+		err = writeCurveText(cio.Stdout, r.FlightResult)
 	}
 	if err != nil {
 		return failErr(cio, "curve", err)

@@ -25,8 +25,8 @@ func TestCLI_UsageAndHelp(t *testing.T) {
 		t.Errorf("unknown command: %d %q", code, errs)
 	}
 	for _, c := range commands() {
-		code, _, errs := run(t, nil, c.name, "--help")
-		if code != exitOK || !strings.Contains(errs, "usage: aloft "+c.name) {
+		code, out, errs := run(t, nil, c.name, "--help")
+		if code != exitOK || !strings.Contains(out+errs, "usage: aloft "+c.name) {
 			t.Errorf("%s --help: exit %d, stderr %q", c.name, code, errs)
 		}
 	}

@@ -29,6 +29,9 @@ type WeighIn struct {
 	At    time.Time `json:"at"`
 	MassG float64   `json:"mass_g"` // grams, > 0
 	Fed   FedState  `json:"fed"`
+	// Note is free text; when a mass far outside the species' range was
+	// confirmed, it holds the reason given.
+	Note string `json:"note,omitempty"`
 }
 
 // ConditionScore is one palpation: fat, pectoral muscle (keel), and an
@@ -100,6 +103,9 @@ type WingMeasurement struct {
 	AreaMethod AreaMethod  `json:"area_method"`
 	ChordMM    *float64    `json:"chord_mm"` // flattened wing chord (not AVONET's unflattened one)
 	Feathers   *FeatherMap `json:"feathers"`
+	// Note is free text; when a span far from the species' reference was
+	// confirmed, it holds the reason given.
+	Note string `json:"note,omitempty"`
 }
 
 // AttemptResult is the outcome of one takeoff attempt.
@@ -204,10 +210,13 @@ type FlightSession struct {
 	// Group is true when the session was recorded for a group of birds
 	// housed and flown together; GroupSize counts them. Per-bird fields then
 	// describe the group unless PerBird is true.
-	Group     bool   `json:"group"`
-	GroupSize int    `json:"group_size"`
-	PerBird   bool   `json:"per_bird"`
-	Notes     string `json:"notes"`
+	Group     bool `json:"group"`
+	GroupSize int  `json:"group_size"`
+	PerBird   bool `json:"per_bird"`
+	// GroupCases lists the case numbers of the birds a group session
+	// covered (GroupSize of them), so each bird's record names the others.
+	GroupCases []string `json:"group_cases,omitempty"`
+	Notes      string   `json:"notes"`
 }
 
 // WaterproofResult is the outcome of a waterproofing test.

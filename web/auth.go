@@ -37,6 +37,22 @@ func currentUser(c echo.Context) records.User { return session(c).User }
 
 func (s *Server) loadSession(next echo.HandlerFunc) echo.HandlerFunc {
 	return func(c echo.Context) error {
+		// API clients authenticate with a per-user bearer token instead of a
+		// cookie; the token acts with its user's roles and needs no CSRF token.
+		if auth := c.Request().Header.Get("Authorization"); strings.HasPrefix(auth, "Bearer ") {
+			if !isAPI(c) {
+				return echo.NewHTTPError(http.StatusUnauthorized, "API tokens work only under /api/.")
+			}
+			u, err := s.store.UserByAPIToken(c.Request().Context(), strings.TrimPrefix(auth, "Bearer "))
+			if errors.Is(err, records.ErrNotFound) {
+				return echo.NewHTTPError(http.StatusUnauthorized, "Unknown or revoked API token.")
+			}
+			if err != nil {
+				return err
+			}
+			c.Set(ctxSession, &records.LoginSession{User: u})
+			return next(c)
+		}
 		if ck, err := c.Cookie(sessionCookie); err == nil && ck.Value != "" {
 			ls, err := s.store.LoginSessionByToken(c.Request().Context(), ck.Value)
 			switch {

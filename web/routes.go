@@ -32,6 +32,8 @@ func (s *Server) routes() {
 	admin.POST("/users/:id/disable", s.handleDisableUser)
 	admin.POST("/users/:id/enable", s.handleEnableUser)
 	admin.POST("/users/:id/password", s.handleResetPassword)
+	admin.POST("/users/:id/tokens", s.handleIssueToken)
+	admin.POST("/tokens/:id/revoke", s.handleRevokeToken)
 
 	s.sections()
 	for _, add := range s.featureRoutes() {
@@ -42,7 +44,7 @@ func (s *Server) routes() {
 // featureRoutes lists the route sets of the record features, each adding
 // its own routes to the logged-in group.
 func (s *Server) featureRoutes() []func(*echo.Group) {
-	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes}
+	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes}
 }
 
 // sections lists, in page order, the feature blocks of the patient page and
@@ -50,6 +52,8 @@ func (s *Server) featureRoutes() []func(*echo.Group) {
 func (s *Server) sections() {
 	s.patientSections = append(s.patientSections, s.conditioningSections()...)
 	s.patientSections = append(s.patientSections, s.clinicalSections()...)
+	s.patientSections = append(s.patientSections, s.cageSections()...)
+	s.patientSections = append(s.patientSections, s.dispositionSections()...)
 	s.patientsExtras = append(s.patientsExtras, s.clinicalExtras()...)
 }
 

@@ -16,7 +16,11 @@ func (s *Server) usersPage(c echo.Context, status int, f views.UserForm) error {
 	if err != nil {
 		return err
 	}
-	return render(c, status, views.UsersPage(s.meta(c, "People"), users, f))
+	tokens, err := s.store.APITokens(c.Request().Context())
+	if err != nil {
+		return err
+	}
+	return render(c, status, views.UsersPage(s.meta(c, "People"), users, tokens, f))
 }
 
 func (s *Server) handleUsers(c echo.Context) error {

@@ -9,6 +9,7 @@ func eventSeeders() map[string]eventSeeder {
 	for _, part := range []map[string]eventSeeder{
 		conditioningSeeders(),
 		clinicalSeeders(),
+		dispositionSeeders(),
 	} {
 		maps.Copy(all, part)
 	}
