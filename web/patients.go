@@ -174,6 +174,21 @@ func (s *Server) handlePatient(c echo.Context) error {
 	return render(c, http.StatusOK, views.PatientView(s.meta(c, p.CaseNumber+" "+p.SpeciesCommon), pg))
 }
 
+// handleRedactFinder erases the finder's personal data (admin only).
+func (s *Server) handleRedactFinder(c echo.Context) error {
+	p, err := s.patientFromPath(c)
+	if err != nil {
+		return err
+	}
+	if c.FormValue("confirm") != "1" {
+		return echo.NewHTTPError(http.StatusUnprocessableEntity, "Tick the confirmation box to erase the finder's data; nothing was changed.")
+	}
+	if err := s.store.RedactFinder(c.Request().Context(), currentUser(c), p.ID); err != nil {
+		return err
+	}
+	return c.Redirect(http.StatusSeeOther, "/patients/"+p.CaseNumber)
+}
+
 // patientSection renders one feature's block of the patient page; ok false
 // leaves it out.
 type patientSection func(c echo.Context, p records.Patient) (views.Section, bool, error)

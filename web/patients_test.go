@@ -124,3 +124,31 @@ func TestPatient_NotFound(t *testing.T) {
 	resp, _ := a.get("/patients/1999-9999")
 	wantStatus(t, resp, http.StatusNotFound)
 }
+
+func TestRedactFinder_AdminOnly(t *testing.T) {
+	a := newTestApp(t)
+	a.login("kim", records.RoleStaff)
+	a.get("/intake")
+	resp, _ := a.post("/intake", intakeForm())
+	wantStatus(t, resp, http.StatusSeeOther)
+	resp, _ = a.post("/patients/2026-0001/redact-finder", url.Values{"confirm": {"1"}})
+	wantStatus(t, resp, http.StatusForbidden)
+
+	b := newTestApp(t)
+	b.login("boss", records.RoleAdmin, records.RoleStaff)
+	b.get("/intake")
+	b.post("/intake", intakeForm())
+	_, doc := b.get("/patients/2026-0001")
+	if !strings.Contains(doc.Find("[data-testid=finder]").Text(), "Ada Finder") {
+		t.Fatal("finder not shown to staff on the patient page")
+	}
+	resp, _ = b.post("/patients/2026-0001/redact-finder", url.Values{"confirm": {"1"}})
+	wantStatus(t, resp, http.StatusSeeOther)
+	_, doc = b.get("/patients/2026-0001")
+	if strings.Contains(doc.Text(), "Ada Finder") {
+		t.Error("the finder's name is still on the page (record or history) after redaction")
+	}
+	if !strings.Contains(doc.Find("[data-testid=audit-history]").Text(), "redact") {
+		t.Error("the history does not say a redaction happened")
+	}
+}

@@ -13,13 +13,15 @@ func (s *Server) routes() {
 	e.GET("/healthz", s.handleHealth)
 	e.GET("/static/*", s.handleStatic)
 	e.GET("/login", s.handleLoginForm)
-	e.POST("/login", s.handleLogin)
-	e.POST("/logout", s.handleLogout)
+	e.POST("/login", s.handleLogin, s.checkCSRF)
+	e.POST("/logout", s.handleLogout, s.checkCSRF)
 	e.GET("/setup", s.handleSetupForm)
-	e.POST("/setup", s.handleSetup)
+	e.POST("/setup", s.handleSetup, s.checkCSRF)
 	e.GET("/cautions", s.handleCautions)
 
-	app := e.Group("", s.requireLogin)
+	// Everything else needs a login first (401 or a redirect to the login
+	// page), then a valid CSRF token on every unsafe request (403).
+	app := e.Group("", s.requireLogin, s.checkCSRF)
 	app.GET("/", func(c echo.Context) error { return c.Redirect(http.StatusSeeOther, "/patients") })
 	app.GET("/patients", s.handlePatients)
 	app.GET("/intake", s.handleIntakeForm)
@@ -34,6 +36,7 @@ func (s *Server) routes() {
 	admin.POST("/users/:id/password", s.handleResetPassword)
 	admin.POST("/users/:id/tokens", s.handleIssueToken)
 	admin.POST("/tokens/:id/revoke", s.handleRevokeToken)
+	admin.POST("/patients/:case/redact-finder", s.handleRedactFinder)
 
 	s.sections()
 	for _, add := range s.featureRoutes() {

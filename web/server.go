@@ -44,7 +44,7 @@ func New(cfg Config, store *records.Store, species *assess.SpeciesTable) *Server
 	e := echo.New()
 	e.HideBanner, e.HidePort = true, true
 	e.HTTPErrorHandler = s.handleError
-	e.Use(s.recoverMiddleware, securityHeaders, s.loadSession, s.checkCSRF)
+	e.Use(s.recoverMiddleware, securityHeaders, s.loadSession)
 	s.echo = e
 	s.routes()
 	return s

@@ -41,7 +41,10 @@ func (c *Chart) Size() (w, h vg.Length) { return c.width, c.height }
 
 // Draw draws the chart onto cv in the rectangle from (0, 0) to (w, h), in
 // points, with the text sizes and line widths of st (ScreenStyle or
-// PrintStyle). A panic inside the plotting library is returned as an error.
+// PrintStyle); for a PDF, cv is a pdfcanvas.Canvas and w, h its Size. The
+// layout adapts to the size: legends wrap, and the feather chart stretches
+// its feathers to fill the height. A panic inside the plotting library is
+// returned as an error.
 func (c *Chart) Draw(cv vg.Canvas, w, h vg.Length, st Style) (err error) {
 	if w <= 0 || h <= 0 {
 		return fmt.Errorf("charts: draw %s chart: size %v×%v must be positive", c.name, w, h)

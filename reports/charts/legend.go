@@ -3,15 +3,24 @@ package charts
 import (
 	"image/color"
 
+	"gonum.org/v1/plot/text"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
 )
 
 // legendEntry is one key of a chart's legend: a small picture of the series
-// and its words.
+// and its words. An entry without a picture is a note on a row of its own.
 type legendEntry struct {
 	text  string
-	thumb func(c draw.Canvas) // draws into c's rectangle
+	thumb func(c draw.Canvas) // draws into c's rectangle; nil for a note
+}
+
+// width returns the entry's width in style ts.
+func (e legendEntry) width(ts text.Style, fs vg.Length) vg.Length {
+	if e.thumb == nil {
+		return ts.Width(e.text)
+	}
+	return fs*(legendThumb+legendGap) + ts.Width(e.text)
 }
 
 // legend is a chart's key, laid out in rows below the data so it never
@@ -40,8 +49,8 @@ func (l *legend) rows(w vg.Length) [][]legendEntry {
 	var rows [][]legendEntry
 	var x vg.Length
 	for _, e := range l.entries {
-		ew := l.st.FontSize*(legendThumb+legendGap) + ts.Width(e.text)
-		if len(rows) == 0 || x > 0 && x+l.st.FontSize*legendSep+ew > w {
+		ew := e.width(ts, l.st.FontSize)
+		if len(rows) == 0 || x > 0 && (x+l.st.FontSize*legendSep+ew > w || e.thumb == nil) {
 			rows = append(rows, nil)
 			x = 0
 		} else if x > 0 {
@@ -70,10 +79,12 @@ func (l *legend) draw(c draw.Canvas) {
 	for _, row := range l.rows(c.Max.X - c.Min.X) {
 		x := c.Min.X
 		for _, e := range row {
-			tc := c
-			tc.Rectangle = vg.Rectangle{Min: vg.Point{X: x, Y: y - fs/2}, Max: vg.Point{X: x + fs*legendThumb, Y: y + fs/2}}
-			e.thumb(tc)
-			x += fs * (legendThumb + legendGap)
+			if e.thumb != nil {
+				tc := c
+				tc.Rectangle = vg.Rectangle{Min: vg.Point{X: x, Y: y - fs/2}, Max: vg.Point{X: x + fs*legendThumb, Y: y + fs/2}}
+				e.thumb(tc)
+				x += fs * (legendThumb + legendGap)
+			}
 			c.FillText(ts, vg.Point{X: x, Y: y}, e.text)
 			x += ts.Width(e.text) + fs*legendSep
 		}

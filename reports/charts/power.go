@@ -42,7 +42,7 @@ func Power(in PowerInput) (*Chart, error) {
 		return nil, fmt.Errorf("charts: power chart: the result has no characteristic speeds: %w", ErrNoData)
 	}
 	p := powerChart{r: r, site: in.SiteLabel}
-	p.chemAtVmr = interpolate(r.Curve, r.MaxRangeSpeedMS, func(c assess.CurvePoint) float64 { return c.PowerChemW })
+	p.chemAtVmr = interpolate(r.Curve, r.MaxRangeSpeedMS, chem)
 	p.refMin = r.ReferenceCurve[0].PowerMechW
 	for _, c := range r.ReferenceCurve {
 		p.refMin = min(p.refMin, c.PowerMechW)
@@ -93,17 +93,18 @@ func (p powerChart) alt() string {
 		oneDecimal(r.MinPowerSpeedMS), sig3(r.MinPowerMechW), oneDecimal(r.MaxRangeSpeedMS), sig3(p.chemAtVmr))
 	fmt.Fprintf(&b, " Healthy reference at the same site: %s W mechanical at its minimum.", sig3(p.refMin))
 	fmt.Fprintf(&b, " Available power %s W, a power margin of %s (a healthy bird's here: %s).",
-		sig3(r.AvailablePowerW), oneDecimal2(r.PowerMargin), oneDecimal2(r.ExpectedMarginSite))
+		sig3(r.AvailablePowerW), twoDecimals(r.PowerMargin), twoDecimals(r.ExpectedMarginSite))
 	if w := r.SpeedWindowMS; w != nil {
 		fmt.Fprintf(&b, " Speed window %s–%s m/s.", oneDecimal(w[0]), oneDecimal(w[1]))
 	} else {
 		b.WriteString(" No speed window: by this model the bird cannot sustain level flight here.")
 	}
+	b.WriteString(" " + modelNote)
 	return b.String()
 }
 
-// oneDecimal2 formats a ratio to two decimals.
-func oneDecimal2(v float64) string { return fmt.Sprintf("%.2f", v) }
+// twoDecimals formats a ratio to two decimals.
+func twoDecimals(v float64) string { return fmt.Sprintf("%.2f", v) }
 
 // powerStyles are the power chart's series styles: each line differs by
 // dash pattern as well as colour.
@@ -126,6 +127,10 @@ func newPowerStyles(st Style) powerStyles {
 	}
 }
 
+// modelNote is the power chart's footnote, from CAUTIONS.md ("Limits of the
+// flight model"), so the chart carries it even when seen on its own.
+const modelNote = "Model estimate, advisory only; people decide."
+
 // windowFill is the tint of the speed window.
 var windowFill = tint(skyBlue, 0.72)
 
@@ -140,6 +145,7 @@ func (p powerChart) legend(st Style) *legend {
 		l.add(fmt.Sprintf("Speed window %s–%s m/s", oneDecimal(w[0]), oneDecimal(w[1])), boxThumb(windowFill, s.window))
 	}
 	l.add("Tangent from the origin", lineThumb(s.tangent, nil))
+	l.add(modelNote, nil)
 	return l
 }
 
@@ -152,6 +158,7 @@ func curveXYs(curve []assess.CurvePoint, f func(assess.CurvePoint) float64) plot
 	return xys
 }
 
+// mech and chem pick a curve point's mechanical and chemical power, W.
 func mech(c assess.CurvePoint) float64 { return c.PowerMechW }
 func chem(c assess.CurvePoint) float64 { return c.PowerChemW }
 

@@ -3,13 +3,19 @@ package pdfcanvas
 import (
 	"bytes"
 	"fmt"
+	"image"
 	"image/color"
 	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
 
 	"github.com/go-pdf/fpdf"
+	stdfont "golang.org/x/image/font"
+	"golang.org/x/image/font/gofont/goregular"
 	"gonum.org/v1/plot/vg"
 )
 
@@ -140,5 +146,66 @@ func TestCanvas_Deterministic(t *testing.T) {
 	}
 	if !bytes.Equal(draw(), draw()) {
 		t.Error("two renderings of the same charts differ")
+	}
+}
+
+// TestCanvas_Family sets text in another registered family, the Go fonts,
+// with only a regular face: bold text falls back to it instead of leaving
+// fpdf in error, and the words come back out of the PDF.
+func TestCanvas_Family(t *testing.T) {
+	pdftotext := tool(t, "pdftotext")
+	pdf := fpdf.New("P", "mm", "A4", "")
+	pdf.AddUTF8FontFromBytes("GoSans", "", goregular.TTF)
+	pdf.AddPage()
+	c := New(pdf, 10, 10, 100, 40, Family("GoSans"))
+	bold := fontFace(t, 12)
+	bold.Font.Weight = stdfont.WeightBold
+	c.FillString(bold, vg.Point{X: 10, Y: 20}, "Wing loading 58 N/m² – Ł")
+	c.Close()
+	path := filepath.Join(t.TempDir(), "family.pdf")
+	if err := os.WriteFile(path, output(t, pdf), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, err := exec.Command(pdftotext, "-enc", "UTF-8", path, "-").Output()
+	if err != nil {
+		t.Fatalf("pdftotext: %v", err)
+	}
+	if want := "Wing loading 58 N/m² – Ł"; !strings.Contains(string(out), want) {
+		t.Errorf("pdftotext output %q lacks %q", out, want)
+	}
+}
+
+// TestCanvas_ImageAndAlpha draws an image and a half-transparent fill: the
+// document must hold the image once however often it is drawn, and an
+// alpha graphics state, and write without error.
+func TestCanvas_ImageAndAlpha(t *testing.T) {
+	img := image.NewRGBA(image.Rect(0, 0, 2, 2))
+	img.Set(0, 0, color.RGBA{0xd5, 0x5e, 0x00, 0xff})
+	render := func(times int) (string, *fpdf.Fpdf) {
+		pdf := newDoc(t)
+		c := New(pdf, 10, 10, 50, 50)
+		for range times {
+			c.DrawImage(vg.Rectangle{Max: vg.Point{X: 72, Y: 72}}, img)
+		}
+		c.SetColor(color.NRGBA{0x00, 0x72, 0xb2, 0x80})
+		var p vg.Path
+		p.Move(vg.Point{})
+		p.Line(vg.Point{X: 10})
+		p.Line(vg.Point{X: 10, Y: 10})
+		p.Close()
+		c.Fill(p)
+		c.Close()
+		return string(output(t, pdf)), pdf
+	}
+	once, _ := render(1)
+	twice, pdf := render(2)
+	if n1, n2 := strings.Count(once, "/Subtype /Image"), strings.Count(twice, "/Subtype /Image"); n1 == 0 || n1 != n2 {
+		t.Errorf("image objects: %d drawn once, %d drawn twice; want the same, more than 0", n1, n2)
+	}
+	if !strings.Contains(twice, "/ca 0.502") {
+		t.Error("no alpha graphics state for the half-transparent fill")
+	}
+	if a, _ := pdf.GetAlpha(); a != 1 {
+		t.Errorf("alpha after Close %g, want 1", a)
 	}
 }
