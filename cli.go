@@ -42,6 +42,7 @@ func commands() []command {
 		{"restore", "replace a database with a checked backup", cmdRestore},
 		{"curve", "compute a bird's power curve and margins", cmdCurve},
 		{"species", "list or show the species reference", cmdSpecies},
+		{"assess", "assess a patient's readiness for release", cmdAssess},
 		{"export", "export case records for permit reporting", cmdExport},
 	}
 }

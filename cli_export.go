@@ -53,6 +53,9 @@ func cmdExport(ctx context.Context, args []string, cio cmdIO) int {
 	if err := writeOut(*out, buf.Bytes(), cio.Stdout); err != nil {
 		return failErr(cio, "export", err)
 	}
+	if err := logExport(ctx, store, *kind, *format, *year, *caseNo, *finders); err != nil {
+		return failErr(cio, "export", err)
+	}
 	if *out != "-" {
 		fmt.Fprintf(cio.Stdout, "wrote %s to %s\n", what, *out)
 	}
@@ -153,4 +156,21 @@ func writeOut(path string, b []byte, stdout io.Writer) error {
 		return err
 	}
 	return os.Rename(tmp.Name(), path)
+}
+
+// logExport writes the export's audit row (the command line acts as the
+// system, user 0).
+func logExport(ctx context.Context, store *records.Store, kind, format string, year int, caseNo string, finders bool) error {
+	e := records.ExportRecord{Kind: kind, IncludeFinders: finders}
+	var pid int64
+	if kind == "patient" {
+		p, err := store.PatientByCase(ctx, caseNo)
+		if err != nil {
+			return err
+		}
+		pid, e.CaseNumber, e.Kind = p.ID, p.CaseNumber, "patient-"+map[string]string{"json": "casefile", "csv": "csv"}[format]
+	} else {
+		e.Year = year
+	}
+	return store.LogExport(ctx, 0, pid, e)
 }

@@ -22,6 +22,7 @@ func TestE2E_DispositionAndExports(t *testing.T) {
 	login("rehab", "demo-rehab-2026")
 	b.Open(base+"/patients?q=Cooper", "[data-testid=patient-list]")
 	b.ClickAndWait("[data-testid=patient-link]", "[data-testid=case-number]")
+	b.Click("[data-testid=disposition-new] summary")
 	b.WaitVisible("[data-testid=disposition-form]")
 	b.SetValue("#disp-kind", "transferred")
 	b.Fill("#disp-place", "Handed over at the centre's door")

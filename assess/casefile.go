@@ -38,7 +38,7 @@ import (
 //	    "status_date": ""                    YYYY-MM-DD of the disposition
 //	  },
 //	  "species": { … },                      one row of the species reference, as
-//	                                         `aloft species --json` prints it
+//	                                         `aloft species show NAME --json` prints it
 //	  "inputs": {                            CaseInputs: the records, each dated "at"
 //	    "sex": "female", "age_class": "adult", "admitted_at": "…",   as the patient's
 //	    "weigh_ins": [ {"at", "mass_g", "fed", "note"} ],
@@ -233,14 +233,14 @@ func WriteCaseFile(w io.Writer, cf CaseFile) error {
 		return err
 	}
 	in := &cf.Inputs
-	in.WeighIns = nonNil(in.WeighIns)
-	in.Conditions = nonNil(in.Conditions)
-	in.Wings = nonNil(in.Wings)
-	in.Trials = nonNil(in.Trials)
-	in.Sessions = nonNil(in.Sessions)
-	in.Waterproofing = nonNil(in.Waterproofing)
-	in.Housing = nonNil(in.Housing)
-	in.Clearances = nonNil(in.Clearances)
+	in.WeighIns = emptyIfNil(in.WeighIns)
+	in.Conditions = emptyIfNil(in.Conditions)
+	in.Wings = emptyIfNil(in.Wings)
+	in.Trials = emptyIfNil(in.Trials)
+	in.Sessions = emptyIfNil(in.Sessions)
+	in.Waterproofing = emptyIfNil(in.Waterproofing)
+	in.Housing = emptyIfNil(in.Housing)
+	in.Clearances = emptyIfNil(in.Clearances)
 	b, err := json.MarshalIndent(cf, "", "  ")
 	if err != nil {
 		return fmt.Errorf("assess: write case file: %w", err)
@@ -251,7 +251,7 @@ func WriteCaseFile(w io.Writer, cf CaseFile) error {
 	return nil
 }
 
-func nonNil[T any](xs []T) []T {
+func emptyIfNil[T any](xs []T) []T {
 	if xs == nil {
 		return []T{}
 	}

@@ -117,6 +117,21 @@ func checkSpeciesRow(path string, sp *Species) error {
 	if sp.Migration < 0 || sp.Migration > 3 {
 		es.recErr(f("migration"), strconv.Itoa(sp.Migration), "expected 1 (sedentary), 2 (partial migrant), 3 (migrant) or 0 (unknown)")
 	}
+	es = append(es, checkSpeciesNumbers(path, sp)...)
+	for key, src := range sp.Sources {
+		if src.Provenance != "" && !slices.Contains(knownProvenances, src.Provenance) {
+			es.recErr(f("sources."+key+".provenance"), string(src.Provenance), "expected published, derived, common-practice, project-default, centre-setting or from-memory")
+		}
+	}
+	slices.SortFunc(es, func(a, b *ValidationError) int { return strings.Compare(a.Field, b.Field) })
+	return es.orNil()
+}
+
+// checkSpeciesNumbers checks a species row's masses, ranges, measurements,
+// feather counts and optional values.
+func checkSpeciesNumbers(path string, sp *Species) ValidationErrors {
+	var es ValidationErrors
+	f := func(name string) string { return path + "." + name }
 	positive := func(name string, p *float64, hi float64) {
 		if p != nil && !(recFinite(*p) && *p > 0 && *p <= hi) {
 			es.recErr(f(name), recNum(*p), "expected a number above 0 and at most %g", hi)
@@ -158,13 +173,7 @@ func checkSpeciesRow(path string, sp *Species) error {
 	if m := sp.FlightMuscleFraction; m != nil && !(*m >= 0 && *m < 1) {
 		es.recErr(f("flight_muscle_fraction"), recNum(*m), "expected the flight-muscle share of body mass, from 0 to below 1")
 	}
-	for key, src := range sp.Sources {
-		if src.Provenance != "" && !slices.Contains(knownProvenances, src.Provenance) {
-			es.recErr(f("sources."+key+".provenance"), string(src.Provenance), "expected published, derived, common-practice, project-default, centre-setting or from-memory")
-		}
-	}
-	slices.SortFunc(es, func(a, b *ValidationError) int { return strings.Compare(a.Field, b.Field) })
-	return es.orNil()
+	return es
 }
 
 // checkInputs checks every record of in, naming errors by JSON path under
@@ -177,22 +186,22 @@ func checkInputs(path string, in CaseInputs) error {
 	if in.AgeClass != "" && !slices.Contains(caseAgeClasses, in.AgeClass) {
 		es.recErr(path+".age_class", in.AgeClass, "expected one of %s", strings.Join(caseAgeClasses, ", "))
 	}
-	each(&es, path+".weigh_ins", in.WeighIns, func(w WeighIn) (time.Time, error) { return w.At, w.Validate() }, nil)
-	each(&es, path+".conditions", in.Conditions, func(c ConditionScore) (time.Time, error) { return c.At, c.Validate() }, nil)
-	each(&es, path+".wings", in.Wings, func(w WingMeasurement) (time.Time, error) { return w.At, w.Validate(nil) }, renameFeathers)
-	each(&es, path+".trials", in.Trials, func(t TakeoffTrial) (time.Time, error) { return t.At, t.Validate(TrialRules{}) }, renameAttempts)
-	each(&es, path+".sessions", in.Sessions, func(s FlightSession) (time.Time, error) { return s.At, checkSession(s) },
+	checkEach(&es, path+".weigh_ins", in.WeighIns, func(w WeighIn) (time.Time, error) { return w.At, w.Validate() }, nil)
+	checkEach(&es, path+".conditions", in.Conditions, func(c ConditionScore) (time.Time, error) { return c.At, c.Validate() }, nil)
+	checkEach(&es, path+".wings", in.Wings, func(w WingMeasurement) (time.Time, error) { return w.At, w.Validate(nil) }, renameFeathers)
+	checkEach(&es, path+".trials", in.Trials, func(t TakeoffTrial) (time.Time, error) { return t.At, t.Validate(TrialRules{}) }, renameAttempts)
+	checkEach(&es, path+".sessions", in.Sessions, func(s FlightSession) (time.Time, error) { return s.At, checkSession(s) },
 		map[string]string{"length_m": "enclosure_length_m", "enclosure": "enclosure_name"})
-	each(&es, path+".waterproofing", in.Waterproofing, func(w WaterproofTest) (time.Time, error) { return w.At, w.Validate() }, nil)
-	each(&es, path+".housing", in.Housing, func(h Housing) (time.Time, error) { return h.From, checkHousing(h) }, nil)
-	each(&es, path+".clearances", in.Clearances, func(c Clearance) (time.Time, error) { return c.At, c.ValidateChange() }, nil)
+	checkEach(&es, path+".waterproofing", in.Waterproofing, func(w WaterproofTest) (time.Time, error) { return w.At, w.Validate() }, nil)
+	checkEach(&es, path+".housing", in.Housing, func(h Housing) (time.Time, error) { return h.From, checkHousing(h) }, nil)
+	checkEach(&es, path+".clearances", in.Clearances, func(c Clearance) (time.Time, error) { return c.At, c.ValidateChange() }, nil)
 	return es.orNil()
 }
 
-// each validates every record of xs and adds its errors under
+// checkEach validates every record of xs and adds its errors under
 // path[i].field, renaming form fields to JSON keys by rename (a map or a
 // func(string) string); a record without its time is an error too.
-func each[T any](es *ValidationErrors, path string, xs []T, check func(T) (time.Time, error), rename any) {
+func checkEach[T any](es *ValidationErrors, path string, xs []T, check func(T) (time.Time, error), rename any) {
 	for i, x := range xs {
 		at, err := check(x)
 		p := fmt.Sprintf("%s[%d].", path, i)

@@ -8,13 +8,14 @@ import (
 // Body condition and feathers: mass and its trend, fat, pectoral muscle,
 // outer primaries and tail.
 
-// sexWords names the sex a mass range is for.
-func sexWords(s Sex) string {
+// rangeOwner names whom a mass range is for: "a female Osprey", "a Song
+// Thrush of either sex".
+func rangeOwner(s Sex, common string) string {
 	switch s {
 	case SexFemale, SexMale:
-		return string(s)
+		return "a " + string(s) + " " + common
 	}
-	return "either-sex"
+	return "a " + common + " of either sex"
 }
 
 // massBasis is the provenance of the species' mass range for the sex, from
@@ -45,8 +46,8 @@ func (e *eval) critMass() Criterion {
 	e.use(&c, ThMassLowBand)
 	lo, hi := e.sp.MassRangeG(e.in.Sex)
 	band := e.th.must(ThMassLowBand)
-	who := sexWords(e.in.Sex) + " " + e.sp.CommonName
-	c.Threshold = fmt.Sprintf("within %s–%s g (%s); up to %s below the range: borderline", fmtG(lo), fmtG(hi), who, pct(band))
+	who := rangeOwner(e.in.Sex, e.sp.CommonName)
+	c.Threshold = fmt.Sprintf("within %s–%s g, the range for %s; up to %s below it: borderline", fmtG(lo), fmtG(hi), who, pctText(band))
 	guide := e.sp.ReleaseMinMassG
 	if guide != nil {
 		c.Threshold += fmt.Sprintf("; release guide: not below %s g", fmtG(*guide))
@@ -61,7 +62,7 @@ func (e *eval) critMass() Criterion {
 	}
 	m := e.mass.MassG
 	c.evidence("mass", fmt.Sprintf("%s g (%s)", fmtG(m), e.mass.Fed), e.mass.At)
-	c.evidence("range", fmt.Sprintf("%s–%s g for a %s", fmtG(lo), fmtG(hi), who), zeroTime)
+	c.evidence("range", fmt.Sprintf("%s–%s g for %s", fmtG(lo), fmtG(hi), who), zeroTime)
 	if guide != nil {
 		c.evidence("release guide", fmt.Sprintf("not below %s g: %s", fmtG(*guide), e.sp.ReleaseGuide), zeroTime)
 	}
@@ -71,7 +72,7 @@ func (e *eval) critMass() Criterion {
 	}
 	switch {
 	case m < lo*(1-band):
-		c.set(StatusUnmet, fmt.Sprintf("%s g is more than %s below the %s g lower end of the range.", fmtG(m), pct(band), fmtG(lo)))
+		c.set(StatusUnmet, fmt.Sprintf("%s g is more than %s below the %s g lower end of the range.", fmtG(m), pctText(band), fmtG(lo)))
 	case m < lo:
 		c.set(StatusBorderline, fmt.Sprintf("%s g is just below the %s g lower end of the range.", fmtG(m), fmtG(lo)))
 	case guide != nil && m < *guide:
@@ -92,7 +93,7 @@ func (e *eval) critMassTrend() Criterion {
 	n := int(e.th.must(ThMassTrendWeighIns))
 	days := e.th.must(ThMassTrendDays)
 	fall := e.th.must(ThMassTrendFall)
-	c.Threshold = fmt.Sprintf("over the last %d weigh-ins spanning at least %g days, not falling by more than %s", n, days, pct(fall))
+	c.Threshold = fmt.Sprintf("over the last %d weigh-ins spanning at least %g days, not falling by more than %s", n, days, pctText(fall))
 	ws := e.in.WeighIns
 	var before []WeighIn
 	for _, w := range ws {
@@ -104,7 +105,7 @@ func (e *eval) critMassTrend() Criterion {
 		ws = before
 	}
 	if len(ws) < n {
-		c.set(StatusNotAssessed, fmt.Sprintf("%s recorded; %d are needed for a trend.", plural(len(ws), "weigh-in"), n))
+		c.set(StatusNotAssessed, fmt.Sprintf("%s recorded; %d are needed for a trend.", countNoun(len(ws), "weigh-in"), n))
 		return c
 	}
 	last := ws[len(ws)-n:]
@@ -119,7 +120,7 @@ func (e *eval) critMassTrend() Criterion {
 	}
 	change := (last[n-1].MassG - last[0].MassG) / last[0].MassG
 	if change < -fall {
-		c.set(StatusUnmet, fmt.Sprintf("Mass fell %s over %.1f days.", pct(-change), span))
+		c.set(StatusUnmet, fmt.Sprintf("Mass fell %s over %.1f days.", pctText(-change), span))
 	} else {
 		c.set(StatusMet, fmt.Sprintf("Mass changed %+.1f %% over %.1f days.", change*100, span))
 	}
@@ -211,7 +212,7 @@ func (e *eval) critOuterPrimaries() Criterion {
 	dl, il := damagedFeathers("left", "P", f.LeftPrimaries, from-1)
 	dr, ir := damagedFeathers("right", "P", f.RightPrimaries, from-1)
 	damaged := append(dl, dr...)
-	c.evidence("outer primaries", listOr(damaged, "none damaged"), e.feathers.At)
+	c.evidence("outer primaries", joinOr(damaged, "none damaged"), e.feathers.At)
 	c.asOf(e.feathers.At)
 	if imped := append(il, ir...); len(imped) > 0 {
 		c.finding("Imped: " + strings.Join(imped, ", ") + " (counted as flight surfaces).")
@@ -238,7 +239,7 @@ func (e *eval) critTail() Criterion {
 	dl, _ := damagedFeathers("left", "R", f.TailLeft, 0)
 	dr, _ := damagedFeathers("right", "R", f.TailRight, 0)
 	damaged := append(dl, dr...)
-	c.evidence("tail", listOr(damaged, "none damaged"), e.feathers.At)
+	c.evidence("tail", joinOr(damaged, "none damaged"), e.feathers.At)
 	c.asOf(e.feathers.At)
 	if len(damaged) > most {
 		c.set(StatusBorderline, fmt.Sprintf("%s damaged or missing: %s.", damageCount(len(damaged), "tail feather", "tail feathers"), strings.Join(damaged, ", ")))
@@ -248,19 +249,19 @@ func (e *eval) critTail() Criterion {
 	return c
 }
 
-// listOr joins xs, or returns none for an empty list.
-func listOr(xs []string, none string) string {
+// joinOr joins xs, or returns none for an empty list.
+func joinOr(xs []string, none string) string {
 	if len(xs) == 0 {
 		return none
 	}
 	return strings.Join(xs, ", ")
 }
 
-// pct formats a fraction as a percentage, e.g. 0.05 → "5 %".
-func pct(f float64) string { return fmt.Sprintf("%g %%", roundTo(f*100, 1)) }
+// pctText formats a fraction as a percentage, e.g. 0.05 → "5 %".
+func pctText(f float64) string { return fmt.Sprintf("%g %%", roundTo(f*100, 1)) }
 
-// plural writes n and the noun, adding "s" unless n is 1: "1 weigh-in", "3 weigh-ins".
-func plural(n int, noun string) string {
+// countNoun writes n and the noun, adding "s" unless n is 1: "1 weigh-in", "3 weigh-ins".
+func countNoun(n int, noun string) string {
 	if n == 1 {
 		return "1 " + noun
 	}

@@ -154,7 +154,7 @@ func (e *eval) critEnclosure() Criterion {
 	e.use(&c, ThEnclosureSlack)
 	slack := e.th.must(ThEnclosureSlack)
 	c.Threshold = fmt.Sprintf("at least %g × %g × %g m (%s ft, %s), less %s for rounding; long enough but too narrow or low: borderline",
-		least.LengthM, least.WidthM, least.HeightM, least.Feet, least.Label, pct(slack))
+		least.LengthM, least.WidthM, least.HeightM, least.Feet, least.Label, pctText(slack))
 	h := latestBy(e.in.Housing, func(h *Housing) bool { return h.Prerelease && !h.From.After(e.now) })
 	if h == nil {
 		h = latestBy(e.in.Housing, func(h *Housing) bool { return !h.From.After(e.now) })

@@ -160,7 +160,7 @@ func (e *eval) critTakeoff() Criterion {
 	case flew > 0:
 		c.set(StatusBorderline, fmt.Sprintf("Climbed away on %d of %d attempts.", climbed, n))
 	default:
-		c.set(StatusUnmet, fmt.Sprintf("Did not get away on any of %s.", plural(n, "attempt")))
+		c.set(StatusUnmet, fmt.Sprintf("Did not get away on any of %s.", countNoun(n, "attempt")))
 		if p := e.phys; p != nil && p.TakeoffBand == TakeoffPowered {
 			c.Refer = true
 			c.finding(fmt.Sprintf("The model gives ample power for this launch (takeoff index %.2f): the failure points to pain, an unhealed wing, weak muscle, damaged feathers or the legs.", p.TakeoffIndex))

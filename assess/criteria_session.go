@@ -159,7 +159,7 @@ func (e *eval) critBreathing() Criterion {
 		temp = fmt.Sprintf("%g °C", *s.AirTempC)
 	}
 	signs := breathingSigns(s)
-	c.evidence("after exercise", listOr(signs, "no open-mouth breathing, no tail bobbing")+"; "+temp, s.At)
+	c.evidence("after exercise", joinOr(signs, "no open-mouth breathing, no tail bobbing")+"; "+temp, s.At)
 	c.asOf(s.At)
 	groupRead(&c, s)
 	switch {
@@ -269,7 +269,7 @@ func (e *eval) critLandings() Criterion {
 	c := newCriterion(CritLandings)
 	e.use(&c, ThLandingsMet, ThLandingsBorderline)
 	met, border := e.th.must(ThLandingsMet), e.th.must(ThLandingsBorderline)
-	c.Threshold = fmt.Sprintf("controlled landings at least %s: met; at least %s: borderline; fewer: unmet", pct(met), pct(border))
+	c.Threshold = fmt.Sprintf("controlled landings at least %s: met; at least %s: borderline; fewer: unmet", pctText(met), pctText(border))
 	s := latestBy(e.in.Sessions, func(s *FlightSession) bool { return s.Landings > 0 })
 	if s == nil {
 		c.set(StatusNotAssessed, "No landings are counted.")

@@ -483,13 +483,15 @@ func hasField(err error, field string) bool {
 	return false
 }
 
-// BenchmarkEvaluate is one full assessment of a complete case: every
-// criterion, the flight model with both curves.
+// BenchmarkEvaluate is one full assessment of a complete case: validation
+// of every record, every criterion, the flight model with both curves. The
+// thresholds are loaded once, as a caller holds them.
 func BenchmarkEvaluate(b *testing.B) {
 	cf := loadCase(b, "osprey-ready")
+	th := DefaultThresholds()
 	b.ReportAllocs()
 	for b.Loop() {
-		if _, err := cf.Evaluate(Thresholds{}, nil, scenarioNow); err != nil {
+		if _, err := cf.Evaluate(th, nil, scenarioNow); err != nil {
 			b.Fatal(err)
 		}
 	}

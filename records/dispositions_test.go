@@ -281,3 +281,17 @@ func TestStore_Caseload(t *testing.T) {
 		}
 	}
 }
+
+func TestStore_LogExport(t *testing.T) {
+	ctx := context.Background()
+	s, _, rehab, _, p := admitted(t)
+	if err := s.LogExport(ctx, rehab.ID, p.ID, records.ExportRecord{Kind: "patient-csv", CaseNumber: p.CaseNumber,
+		IncludeFinders: true}); err != nil {
+		t.Fatal(err)
+	}
+	audit, err := s.Audit(ctx, records.AuditFilter{PatientID: p.ID, Entity: "export"})
+	if err != nil || len(audit) != 1 || audit[0].Action != records.ActionExport || audit[0].UserID != rehab.ID ||
+		!strings.Contains(audit[0].After, `"include_finders":true`) {
+		t.Errorf("audit = %+v, %v; want one export row by the rehabilitator, with finders", audit, err)
+	}
+}

@@ -143,3 +143,23 @@ func (s *Store) CaseYears(ctx context.Context) ([]int, error) {
 	}
 	return out, rows.Err()
 }
+
+// ActionExport is the audit action of an export of case records.
+const ActionExport = "export"
+
+// ExportRecord describes one export for the audit trail.
+type ExportRecord struct {
+	Kind           string `json:"kind"`                  // cases, summary, patient-csv, patient-casefile
+	Year           int    `json:"year,omitempty"`        // cases, summary
+	CaseNumber     string `json:"case_number,omitempty"` // patient exports
+	IncludeFinders bool   `json:"include_finders"`       // finders' personal data included
+}
+
+// LogExport appends an audit row saying who exported what, and whether it
+// carried finders' personal data. patientID is 0 for a year's export.
+func (s *Store) LogExport(ctx context.Context, actorID, patientID int64, e ExportRecord) error {
+	return wrapValidation("log export", s.inTx(ctx, func(tx *sql.Tx) error {
+		return s.writeAudit(ctx, tx, auditRow{userID: actorID, entity: "export", entityID: patientID, patientID: patientID,
+			action: ActionExport, after: e})
+	}))
+}

@@ -152,7 +152,7 @@ func (s *Server) handleClinicalAdd(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	f := s.clinicalForm(p, kind, formValues(c))
+	f := s.clinicalForm(p, kind, clinFormValues(c))
 	rec, errs := s.parseClinical(kind, f.Values)
 	if len(errs) == 0 {
 		_, err = s.store.AddClinical(c.Request().Context(), currentUser(c).ID, p.ID, rec)
@@ -214,7 +214,7 @@ func (s *Server) handleClinicalCorrect(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	f, err := s.correctionForm(c, p, e, formValues(c))
+	f, err := s.correctionForm(c, p, e, clinFormValues(c))
 	if err != nil {
 		return err
 	}
@@ -275,9 +275,9 @@ func (s *Server) handleClinicalRemove(c echo.Context) error {
 	return c.Redirect(http.StatusSeeOther, "/patients/"+p.CaseNumber+"#clinical")
 }
 
-// formValues returns the posted form's single values by name, the CSRF
+// clinFormValues returns the posted form's single values by name, the CSRF
 // token left out.
-func formValues(c echo.Context) map[string]string {
+func clinFormValues(c echo.Context) map[string]string {
 	out := map[string]string{}
 	form, _ := c.FormParams()
 	for k, vs := range form {

@@ -20,8 +20,8 @@ func (s *Server) clinicalLoc() *time.Location { return time.Local }
 
 // Layouts of the browser's date-time and time fields.
 const (
-	dateTimeLocal = "2006-01-02T15:04"
-	clockLayout   = "15:04"
+	clinDateTime = "2006-01-02T15:04"
+	clinClock    = "15:04"
 )
 
 // parseClinical converts the posted values of a kind's form into its record,
@@ -61,7 +61,7 @@ func (s *Server) parseClinical(kind records.Kind, v map[string]string) (records.
 // parseAt reads a browser date-time field in the centre's time zone.
 func (s *Server) parseAt(raw string, errs *assess.ValidationErrors) time.Time {
 	raw = strings.TrimSpace(raw)
-	for _, layout := range []string{dateTimeLocal, "2006-01-02T15:04:05", "2006-01-02 15:04"} {
+	for _, layout := range []string{clinDateTime, "2006-01-02T15:04:05", "2006-01-02 15:04"} {
 		if t, err := time.ParseInLocation(layout, raw, s.clinicalLoc()); err == nil {
 			return t
 		}
@@ -70,7 +70,7 @@ func (s *Server) parseAt(raw string, errs *assess.ValidationErrors) time.Time {
 	return time.Time{}
 }
 
-func finding(raw string) assess.Finding {
+func clinFinding(raw string) assess.Finding {
 	if raw == "" {
 		return assess.FindingNotExamined
 	}
@@ -79,9 +79,9 @@ func finding(raw string) assess.Finding {
 
 func parseExam(v map[string]string, at time.Time, errs *assess.ValidationErrors) assess.Exam {
 	x := assess.Exam{At: at, Findings: map[assess.BodySystem]string{},
-		EyeLeft: finding(v["eye_left"]), EyeRight: finding(v["eye_right"]), EyesNote: strings.TrimSpace(v["eyes_note"]),
-		FeetLegs: finding(v["feet_legs"]), FeetLegsNote: strings.TrimSpace(v["feet_legs_note"]),
-		Feathers: finding(v["feathers"]), FeathersNote: strings.TrimSpace(v["feathers_note"]),
+		EyeLeft: clinFinding(v["eye_left"]), EyeRight: clinFinding(v["eye_right"]), EyesNote: strings.TrimSpace(v["eyes_note"]),
+		FeetLegs: clinFinding(v["feet_legs"]), FeetLegsNote: strings.TrimSpace(v["feet_legs_note"]),
+		Feathers: clinFinding(v["feathers"]), FeathersNote: strings.TrimSpace(v["feathers_note"]),
 		Hydration: assess.Hydration(v["hydration"]), Notes: strings.TrimSpace(v["notes"])}
 	if x.Hydration == "" {
 		x.Hydration = assess.HydrationNotAssessed
@@ -114,7 +114,7 @@ func parseMedication(v map[string]string, at time.Time, errs *assess.ValidationE
 	}
 	// Browsers may send a time field with seconds.
 	if t, err := time.Parse("15:04:05", m.FirstDose); err == nil {
-		m.FirstDose = t.Format(clockLayout)
+		m.FirstDose = t.Format(clinClock)
 	}
 	return m
 }
@@ -136,7 +136,7 @@ func parseLab(v map[string]string, at time.Time, errs *assess.ValidationErrors) 
 // choices.
 func (s *Server) clinicalDefaults(kind records.Kind, u records.User) map[string]string {
 	now := s.now().In(s.clinicalLoc())
-	v := map[string]string{"at": now.Format(dateTimeLocal)}
+	v := map[string]string{"at": now.Format(clinDateTime)}
 	switch kind {
 	case records.KindExam:
 		for _, f := range []string{"eye_left", "eye_right", "feet_legs", "feathers"} {
@@ -183,8 +183,8 @@ func (s *Server) clinicalValues(e records.Entry) (map[string]string, error) {
 	case records.KindLab:
 		var l assess.LabResult
 		err = e.Decode(&l)
-		v = map[string]string{"test": l.Test, "value": l.Value, "unit": l.Unit, "ref_low": optFloat(l.RefLow),
-			"ref_high": optFloat(l.RefHigh), "lab": l.Lab, "notes": l.Notes}
+		v = map[string]string{"test": l.Test, "value": l.Value, "unit": l.Unit, "ref_low": clinOptFloat(l.RefLow),
+			"ref_high": clinOptFloat(l.RefHigh), "lab": l.Lab, "notes": l.Notes}
 	case records.KindDiseaseTest:
 		var d assess.DiseaseTest
 		err = e.Decode(&d)
@@ -193,7 +193,7 @@ func (s *Server) clinicalValues(e records.Entry) (map[string]string, error) {
 	default:
 		v = map[string]string{}
 	}
-	v["at"] = e.At.In(s.clinicalLoc()).Format(dateTimeLocal)
+	v["at"] = e.At.In(s.clinicalLoc()).Format(clinDateTime)
 	return v, err
 }
 
@@ -210,7 +210,7 @@ func examValues(x assess.Exam) map[string]string {
 	return v
 }
 
-func optFloat(p *float64) string {
+func clinOptFloat(p *float64) string {
 	if p == nil {
 		return ""
 	}

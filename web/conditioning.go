@@ -63,20 +63,22 @@ var condRecorderRoles = []records.Role{records.RoleStaff, records.RoleRehabilita
 
 // conditioningRoutes adds the conditioning-record routes.
 func (s *Server) conditioningRoutes(g *echo.Group) {
-	rec := g.Group("", requireRole(condRecorderRoles...))
+	// Roles are checked per route: a group with middleware would also
+	// catch every unknown path.
+	rec := requireRole(condRecorderRoles...)
 	for _, ck := range condKinds() {
-		rec.GET("/patients/:case/"+ck.path+"/new", func(c echo.Context) error { return s.handleCondNew(c, ck) })
-		rec.POST("/patients/:case/"+ck.path, func(c echo.Context) error { return s.handleCondAdd(c, ck) })
+		g.GET("/patients/:case/"+ck.path+"/new", func(c echo.Context) error { return s.handleCondNew(c, ck) }, rec)
+		g.POST("/patients/:case/"+ck.path, func(c echo.Context) error { return s.handleCondAdd(c, ck) }, rec)
 	}
-	rec.GET("/patients/:case/records/:key/correct", s.handleCondCorrectForm)
-	rec.POST("/patients/:case/records/:key/correct", s.handleCondCorrect)
-	rec.GET("/patients/:case/records/:key/remove", s.handleCondRemoveForm)
-	rec.POST("/patients/:case/records/:key/remove", s.handleCondRemove)
+	g.GET("/patients/:case/records/:key/correct", s.handleCondCorrectForm, rec)
+	g.POST("/patients/:case/records/:key/correct", s.handleCondCorrect, rec)
+	g.GET("/patients/:case/records/:key/remove", s.handleCondRemoveForm, rec)
+	g.POST("/patients/:case/records/:key/remove", s.handleCondRemove, rec)
 	g.GET("/enclosures", s.handleEnclosures)
-	ed := g.Group("", requireRole(records.RoleAdmin, records.RoleRehabilitator))
-	ed.POST("/enclosures", s.handleAddEnclosure)
-	ed.GET("/enclosures/:id/edit", s.handleEditEnclosureForm)
-	ed.POST("/enclosures/:id", s.handleEditEnclosure)
+	ed := requireRole(records.RoleAdmin, records.RoleRehabilitator)
+	g.POST("/enclosures", s.handleAddEnclosure, ed)
+	g.GET("/enclosures/:id/edit", s.handleEditEnclosureForm, ed)
+	g.POST("/enclosures/:id", s.handleEditEnclosure, ed)
 }
 
 // condContext loads the patient of the path and its species.

@@ -224,9 +224,11 @@ func (s *Server) condDescribe(cx *condCtx, e records.Entry) (summary string, det
 		if t.Mode == assess.TrialDrop {
 			caution = fmt.Sprintf("Drop test from %s m: a fall can injure a bird that cannot fly.", condOptNum(t.DropHeightM))
 		}
-		rules := assess.TrialRulesFor(cx.species, 0)
-		if t.ModeReason != "" || !rules.Safe(t.Mode) {
-			details = append(details, "Not a usual mode for the species; reason: "+t.ModeReason)
+		switch rules := assess.TrialRulesFor(cx.species, 0); {
+		case !rules.Safe(t.Mode):
+			details = append(details, "Not a mode suited to "+strings.ToLower(rules.GroupLabel)+"; reason given: "+t.ModeReason)
+		case t.ModeReason != "":
+			details = append(details, "Reason for the mode: "+t.ModeReason)
 		}
 		details = append(details, condNonEmpty(t.Notes)...)
 		return condTrialText(t), details, caution, ""

@@ -152,7 +152,7 @@ func TestDisposition_ReleaseAndCorrect(t *testing.T) {
 	if doc.Find("[data-testid=disposition-correct] [data-testid=disposition-form]").Length() != 1 {
 		t.Fatal("no correction form on a disposed patient's page")
 	}
-	if doc.Find("[data-testid=patient-exports] a").Length() != 2 {
+	if doc.Find("[data-testid=patient-exports] a[download]").Length() != 2 {
 		t.Error("the rehabilitator is not offered the patient's CSV and case file")
 	}
 	fix := releaseForm()

@@ -88,7 +88,8 @@ func exportOptions(c echo.Context) (reports.ExportOptions, reports.CSVOptions) {
 }
 
 // sendDownload answers with body as an attachment named filename. Exports
-// may hold personal data: no caching.
+// may hold personal data: no caching. Callers log the export first
+// (records.Store.LogExport), so the audit trail says who took what.
 func sendDownload(c echo.Context, contentType, filename string, body []byte) error {
 	h := c.Response().Header()
 	h.Set("Content-Disposition", `attachment; filename="`+filename+`"`)
@@ -118,6 +119,10 @@ func (s *Server) yearDownload(c echo.Context, kind string) error {
 		err = reports.WriteSummaryCSV(&buf, sum, csvOpts)
 	}
 	if err != nil {
+		return err
+	}
+	if err := s.store.LogExport(c.Request().Context(), currentUser(c).ID, 0,
+		records.ExportRecord{Kind: kind, Year: year, IncludeFinders: opts.IncludeFinders}); err != nil {
 		return err
 	}
 	return sendDownload(c, csvType, "aloft-"+kind+"-"+strconv.Itoa(year)+".csv", buf.Bytes())
@@ -150,6 +155,10 @@ func (s *Server) handleExportPatientCSV(c echo.Context) error {
 	if err := reports.WritePatientCSV(&buf, p.CaseNumber, rows, csvOpts); err != nil {
 		return err
 	}
+	if err := s.store.LogExport(c.Request().Context(), currentUser(c).ID, p.ID,
+		records.ExportRecord{Kind: "patient-csv", CaseNumber: p.CaseNumber, IncludeFinders: opts.IncludeFinders}); err != nil {
+		return err
+	}
 	return sendDownload(c, csvType, "aloft-"+safeFileName(p.CaseNumber)+".csv", buf.Bytes())
 }
 
@@ -165,6 +174,10 @@ func (s *Server) handleExportCaseFile(c echo.Context) error {
 		return echo.NewHTTPError(http.StatusUnprocessableEntity, "This patient's records cannot be written as a case file: "+ve.Error())
 	}
 	if err != nil {
+		return err
+	}
+	if err := s.store.LogExport(c.Request().Context(), currentUser(c).ID, p.ID,
+		records.ExportRecord{Kind: "patient-casefile", CaseNumber: p.CaseNumber, IncludeFinders: opts.IncludeFinders}); err != nil {
 		return err
 	}
 	return sendDownload(c, "application/json; charset=utf-8", "aloft-"+safeFileName(p.CaseNumber)+".json", buf.Bytes())

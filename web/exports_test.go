@@ -91,7 +91,7 @@ func TestExports_PageAndDownloads(t *testing.T) {
 	if n := doc.Find("[data-testid=listing-row]").Length(); n != 3 {
 		t.Errorf("%d listing rows, want 3", n)
 	}
-	if got := doc.Find("[data-testid=summary-total] td").First().Text(); got != "3" {
+	if got := doc.Find("[data-testid=summary-total] [data-testid=received]").Text(); got != "3" {
 		t.Errorf("received in total %q, want 3", got)
 	}
 	resp, _ = a.get("/exports?year=20x6")
@@ -118,6 +118,10 @@ func TestExports_PageAndDownloads(t *testing.T) {
 	_, body = exportGet(t, a, "/exports/cases.csv?year=2026&finders=1&bom=1")
 	if !bytes.HasPrefix(body, []byte("\uFEFF")) || !bytes.Contains(body, []byte("Invented Finder")) {
 		t.Error("asked for finders and a BOM, got neither")
+	}
+	audit, _ := a.store.Audit(context.Background(), records.AuditFilter{Entity: "export"})
+	if len(audit) != 2 || !strings.Contains(audit[0].After, `"include_finders":true`) || audit[0].Username != "rita" {
+		t.Errorf("export audit rows %+v, want two, the last by rita with finders", audit)
 	}
 	resp, body = exportGet(t, a, "/exports/summary.csv?year=2026")
 	wantStatus(t, resp, http.StatusOK)

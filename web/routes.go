@@ -47,12 +47,13 @@ func (s *Server) routes() {
 // featureRoutes lists the route sets of the record features, each adding
 // its own routes to the logged-in group.
 func (s *Server) featureRoutes() []func(*echo.Group) {
-	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes}
+	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes, s.chartRoutes, s.assessmentRoutes}
 }
 
 // sections lists, in page order, the feature blocks of the patient page and
 // of the patient list.
 func (s *Server) sections() {
+	s.patientSections = append(s.patientSections, s.assessmentSections()...)
 	s.patientSections = append(s.patientSections, s.conditioningSections()...)
 	s.patientSections = append(s.patientSections, s.clinicalSections()...)
 	s.patientSections = append(s.patientSections, s.cageSections()...)

@@ -42,8 +42,8 @@ func (f ClinicalForm) Action() string {
 // RemoveAction is the URL of the removal form of a correction.
 func (f ClinicalForm) RemoveAction() string { return f.Action() + "/remove" }
 
-// Option is one choice of a select or a group of radio buttons.
-type Option struct{ Value, Label string }
+// ClinicalOption is one choice of a select or a group of radio buttons.
+type ClinicalOption struct{ Value, Label string }
 
 // ClinicalSection is the clinical record block of the patient page.
 type ClinicalSection struct {
@@ -158,16 +158,16 @@ func clearanceBadge(s assess.ClearanceState) string {
 	return "badge badge-not-assessed"
 }
 
-func clearanceItemOptions(items []assess.Clearance) []Option {
-	out := make([]Option, 0, len(items))
+func clearanceItemOptions(items []assess.Clearance) []ClinicalOption {
+	out := make([]ClinicalOption, 0, len(items))
 	for _, c := range items {
-		out = append(out, Option{string(c.Item), ClearanceItemLabel(c.Item)})
+		out = append(out, ClinicalOption{string(c.Item), ClearanceItemLabel(c.Item)})
 	}
 	return out
 }
 
-func clearanceStateOptions() []Option {
-	return []Option{{string(assess.ClearanceCleared), "Cleared"}, {string(assess.ClearanceNotCleared), "Not cleared"},
+func clearanceStateOptions() []ClinicalOption {
+	return []ClinicalOption{{string(assess.ClearanceCleared), "Cleared"}, {string(assess.ClearanceNotCleared), "Not cleared"},
 		{string(assess.ClearanceNotExamined), "Not yet examined (undo)"}}
 }
 
@@ -202,10 +202,10 @@ func FrequencyLabel(everyHours int) string {
 	return fmt.Sprintf("every %d h", everyHours)
 }
 
-func frequencyOptions() []Option {
-	var out []Option
+func frequencyOptions() []ClinicalOption {
+	var out []ClinicalOption
 	for _, h := range []int{24, 12, 8, 6, 4, 2, 1, 48, 72, 168, 0} {
-		out = append(out, Option{strconv.Itoa(h), FrequencyLabel(h)})
+		out = append(out, ClinicalOption{strconv.Itoa(h), FrequencyLabel(h)})
 	}
 	return out
 }
@@ -239,54 +239,54 @@ func doseTimes(ts []time.Time) string {
 	return strings.Join(ss, ", ")
 }
 
-func unitOptions() []Option {
-	out := []Option{{"", "choose…"}}
+func unitOptions() []ClinicalOption {
+	out := []ClinicalOption{{"", "choose…"}}
 	for _, u := range assess.DoseUnits {
-		out = append(out, Option{string(u), string(u)})
+		out = append(out, ClinicalOption{string(u), string(u)})
 	}
 	return out
 }
 
-func routeOptions() []Option {
+func routeOptions() []ClinicalOption {
 	labels := map[assess.Route]string{assess.RouteOral: "PO (by mouth)", assess.RouteSC: "SC (subcutaneous)",
 		assess.RouteIM: "IM (intramuscular)", assess.RouteIV: "IV (intravenous)", assess.RouteIO: "IO (intraosseous)"}
-	out := []Option{{"", "choose…"}}
+	out := []ClinicalOption{{"", "choose…"}}
 	for _, r := range assess.Routes {
 		l := labels[r]
 		if l == "" {
 			l = string(r)
 		}
-		out = append(out, Option{string(r), l})
+		out = append(out, ClinicalOption{string(r), l})
 	}
 	return out
 }
 
-func findingOptions() []Option {
-	return []Option{{string(assess.FindingNotExamined), "not examined"}, {string(assess.FindingNormal), "normal"},
+func findingOptions() []ClinicalOption {
+	return []ClinicalOption{{string(assess.FindingNotExamined), "not examined"}, {string(assess.FindingNormal), "normal"},
 		{string(assess.FindingAbnormal), "abnormal"}}
 }
 
-func hydrationOptions() []Option {
-	out := make([]Option, 0, len(assess.Hydrations))
+func hydrationOptions() []ClinicalOption {
+	out := make([]ClinicalOption, 0, len(assess.Hydrations))
 	for _, h := range assess.Hydrations {
-		out = append(out, Option{string(h), strings.ReplaceAll(string(h), "-", " ")})
+		out = append(out, ClinicalOption{string(h), strings.ReplaceAll(string(h), "-", " ")})
 	}
 	return out
 }
 
-func keelOptions() []Option {
-	return []Option{{"", "not scored"}, {"0", "0 – keel sharp, muscle hollow"}, {"1", "1"}, {"2", "2"},
+func keelOptions() []ClinicalOption {
+	return []ClinicalOption{{"", "not scored"}, {"0", "0 – keel sharp, muscle hollow"}, {"1", "1"}, {"2", "2"},
 		{"3", "3 – muscle fully rounded"}}
 }
 
-func diagnosisStatusOptions() []Option {
-	return []Option{{string(assess.DiagnosisActive), "active"}, {string(assess.DiagnosisResolved), "resolved"}}
+func diagnosisStatusOptions() []ClinicalOption {
+	return []ClinicalOption{{string(assess.DiagnosisActive), "active"}, {string(assess.DiagnosisResolved), "resolved"}}
 }
 
-func resultOptions() []Option {
-	out := make([]Option, 0, len(assess.TestResults))
+func resultOptions() []ClinicalOption {
+	out := make([]ClinicalOption, 0, len(assess.TestResults))
 	for _, r := range assess.TestResults {
-		out = append(out, Option{string(r), string(r)})
+		out = append(out, ClinicalOption{string(r), string(r)})
 	}
 	return out
 }
@@ -423,7 +423,7 @@ func versionLine(e records.Entry) string {
 	return s
 }
 
-func intStr(n int) string { return strconv.Itoa(n) }
+func clinItoa(n int) string { return strconv.Itoa(n) }
 
 func kindNoun(k records.Kind) string { return strings.ToLower(ClinicalKindTitle(k)) }
 

@@ -2008,7 +2008,7 @@ func CondSummaryBody(s CondSummary) templ.Component {
 					var templ_7745c5c3_Var86 string
 					templ_7745c5c3_Var86, templ_7745c5c3_Err = templ.JoinStringErrs(r.Source)
 					if templ_7745c5c3_Err != nil {
-						return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 380, Col: 39}
+						return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 380, Col: 38}
 					}
 					_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var86))
 					if templ_7745c5c3_Err != nil {
@@ -2758,7 +2758,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 					var templ_7745c5c3_Var125 string
 					templ_7745c5c3_Var125, templ_7745c5c3_Err = templ.JoinStringErrs(EnclosureKindLabel(e.Kind))
 					if templ_7745c5c3_Err != nil {
-						return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 489, Col: 55}
+						return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 490, Col: 37}
 					}
 					_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var125))
 					if templ_7745c5c3_Err != nil {
@@ -2781,7 +2781,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 					var templ_7745c5c3_Var126 string
 					templ_7745c5c3_Var126, templ_7745c5c3_Err = templ.JoinStringErrs(EnclosureSize(e.LengthM, e.WidthM, e.HeightM))
 					if templ_7745c5c3_Err != nil {
-						return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 495, Col: 88}
+						return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 496, Col: 88}
 					}
 					_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var126))
 					if templ_7745c5c3_Err != nil {
@@ -2799,7 +2799,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 						var templ_7745c5c3_Var127 string
 						templ_7745c5c3_Var127, templ_7745c5c3_Err = templ.JoinStringErrs(e.Notes)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 497, Col: 35}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 498, Col: 35}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var127))
 						if templ_7745c5c3_Err != nil {
@@ -2818,7 +2818,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 						var templ_7745c5c3_Var128 string
 						templ_7745c5c3_Var128, templ_7745c5c3_Err = templruntime.NewAttributeExpression(templ.SafeURL(fmt.Sprintf("/enclosures/%d/edit", e.ID))).ResolveURL(ctx)
 						if templ_7745c5c3_Err != nil {
-							return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 500, Col: 88}
+							return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 501, Col: 88}
 						}
 						_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var128)
 						if templ_7745c5c3_Err != nil {
@@ -2857,7 +2857,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 254, " <section class=\"card\"><h2>Minimum sizes for pre-release enclosures</h2><details><summary>Sizes by group of birds (length × width × height)</summary><table class=\"ref\"><thead><tr><th>For</th><th>Size</th><th>Source</th></tr></thead> <tbody>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 254, " <section class=\"card\"><h2>Minimum sizes for pre-release enclosures</h2><details><summary>Sizes by group of birds (length × width × height)</summary><div class=\"table-wrap\"><table class=\"ref\"><thead><tr><th>For</th><th>Size</th><th>Source</th></tr></thead> <tbody>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
@@ -2869,7 +2869,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 				var templ_7745c5c3_Var129 string
 				templ_7745c5c3_Var129, templ_7745c5c3_Err = templ.JoinStringErrs(c.Label)
 				if templ_7745c5c3_Err != nil {
-					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 522, Col: 21}
+					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 524, Col: 22}
 				}
 				_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var129))
 				if templ_7745c5c3_Err != nil {
@@ -2882,7 +2882,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 				var templ_7745c5c3_Var130 string
 				templ_7745c5c3_Var130, templ_7745c5c3_Err = templ.JoinStringErrs(EnclosureSize(c.LengthM, c.WidthM, c.HeightM))
 				if templ_7745c5c3_Err != nil {
-					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 523, Col: 59}
+					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 525, Col: 60}
 				}
 				_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var130))
 				if templ_7745c5c3_Err != nil {
@@ -2895,7 +2895,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 				var templ_7745c5c3_Var131 string
 				templ_7745c5c3_Var131, templ_7745c5c3_Err = templ.JoinStringErrs(string(c.Provenance))
 				if templ_7745c5c3_Err != nil {
-					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 524, Col: 49}
+					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 526, Col: 50}
 				}
 				_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var131))
 				if templ_7745c5c3_Err != nil {
@@ -2908,7 +2908,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 				var templ_7745c5c3_Var132 string
 				templ_7745c5c3_Var132, templ_7745c5c3_Err = templ.JoinStringErrs(c.Citation)
 				if templ_7745c5c3_Err != nil {
-					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 524, Col: 65}
+					return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 526, Col: 66}
 				}
 				_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var132))
 				if templ_7745c5c3_Err != nil {
@@ -2919,7 +2919,7 @@ func EnclosuresPage(m Meta, v EnclosuresView) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 260, "</tbody></table></details></section>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 260, "</tbody></table></div></details></section>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
@@ -2974,7 +2974,7 @@ func EnclosureEditPage(m Meta, f EnclosureForm) templ.Component {
 			var templ_7745c5c3_Var135 string
 			templ_7745c5c3_Var135, templ_7745c5c3_Err = templ.JoinStringErrs(f.Name)
 			if templ_7745c5c3_Err != nil {
-				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 540, Col: 20}
+				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 543, Col: 20}
 			}
 			_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var135))
 			if templ_7745c5c3_Err != nil {
@@ -3032,7 +3032,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var137 string
 		templ_7745c5c3_Var137, templ_7745c5c3_Err = templruntime.NewAttributeExpression(templ.SafeURL(f.Action())).ResolveURL(ctx)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 551, Col: 55}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 554, Col: 55}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var137)
 		if templ_7745c5c3_Err != nil {
@@ -3045,7 +3045,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var138 string
 		templ_7745c5c3_Var138, templ_7745c5c3_Err = templruntime.NewAttributeExpression(m.CSRF).Resolve(ctx)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 552, Col: 50}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 555, Col: 50}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var138)
 		if templ_7745c5c3_Err != nil {
@@ -3063,7 +3063,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 			var templ_7745c5c3_Var139 string
 			templ_7745c5c3_Var139, templ_7745c5c3_Err = templruntime.NewAttributeExpression(fmt.Sprint(f.Version)).Resolve(ctx)
 			if templ_7745c5c3_Err != nil {
-				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 554, Col: 68}
+				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 557, Col: 68}
 			}
 			_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var139)
 			if templ_7745c5c3_Err != nil {
@@ -3081,7 +3081,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var140 string
 		templ_7745c5c3_Var140, templ_7745c5c3_Err = templruntime.NewAttributeExpression(f.Name).Resolve(ctx)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 557, Col: 45}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 560, Col: 45}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var140)
 		if templ_7745c5c3_Err != nil {
@@ -3107,7 +3107,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 			var templ_7745c5c3_Var141 string
 			templ_7745c5c3_Var141, templ_7745c5c3_Err = templruntime.NewAttributeExpression(o.Value).Resolve(ctx)
 			if templ_7745c5c3_Err != nil {
-				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 562, Col: 27}
+				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 565, Col: 27}
 			}
 			_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var141)
 			if templ_7745c5c3_Err != nil {
@@ -3130,7 +3130,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 			var templ_7745c5c3_Var142 string
 			templ_7745c5c3_Var142, templ_7745c5c3_Err = templ.JoinStringErrs(o.Label)
 			if templ_7745c5c3_Err != nil {
-				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 562, Col: 71}
+				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 565, Col: 71}
 			}
 			_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var142))
 			if templ_7745c5c3_Err != nil {
@@ -3176,7 +3176,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var143 string
 		templ_7745c5c3_Var143, templ_7745c5c3_Err = templruntime.NewAttributeExpression(f.Length).Resolve(ctx)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 576, Col: 54}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 579, Col: 54}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var143)
 		if templ_7745c5c3_Err != nil {
@@ -3197,7 +3197,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var144 string
 		templ_7745c5c3_Var144, templ_7745c5c3_Err = templruntime.NewAttributeExpression(f.Width).Resolve(ctx)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 581, Col: 51}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 584, Col: 51}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var144)
 		if templ_7745c5c3_Err != nil {
@@ -3218,7 +3218,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var145 string
 		templ_7745c5c3_Var145, templ_7745c5c3_Err = templruntime.NewAttributeExpression(f.Height).Resolve(ctx)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 586, Col: 54}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 589, Col: 54}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var145)
 		if templ_7745c5c3_Err != nil {
@@ -3239,7 +3239,7 @@ func enclosureForm(m Meta, f EnclosureForm) templ.Component {
 		var templ_7745c5c3_Var146 string
 		templ_7745c5c3_Var146, templ_7745c5c3_Err = templ.JoinStringErrs(f.Notes)
 		if templ_7745c5c3_Err != nil {
-			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 592, Col: 54}
+			return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 595, Col: 54}
 		}
 		_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var146))
 		if templ_7745c5c3_Err != nil {
@@ -3302,7 +3302,7 @@ func encErr(f EnclosureForm, name string) templ.Component {
 			var templ_7745c5c3_Var148 string
 			templ_7745c5c3_Var148, templ_7745c5c3_Err = templruntime.NewAttributeExpression("err-" + name).Resolve(ctx)
 			if templ_7745c5c3_Err != nil {
-				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 603, Col: 65}
+				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 606, Col: 65}
 			}
 			_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ_7745c5c3_Var148)
 			if templ_7745c5c3_Err != nil {
@@ -3315,7 +3315,7 @@ func encErr(f EnclosureForm, name string) templ.Component {
 			var templ_7745c5c3_Var149 string
 			templ_7745c5c3_Var149, templ_7745c5c3_Err = templ.JoinStringErrs(f.Errors.Field(name))
 			if templ_7745c5c3_Err != nil {
-				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 603, Col: 90}
+				return templ.Error{Err: templ_7745c5c3_Err, FileName: `conditioning.templ`, Line: 606, Col: 90}
 			}
 			_, templ_7745c5c3_Err = templ_7745c5c3_Buffer.WriteString(templ.EscapeString(templ_7745c5c3_Var149))
 			if templ_7745c5c3_Err != nil {

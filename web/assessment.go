@@ -1,0 +1,202 @@
+package web
+
+import (
+	"fmt"
+	"net/http"
+	"net/url"
+	"strconv"
+	"strings"
+
+	"github.com/labstack/echo/v4"
+
+	"aloft/assess"
+	"aloft/records"
+	"aloft/web/views"
+)
+
+// assessmentRoutes adds the assessment page and its API twin. Every logged-in
+// user may read an assessment; API clients may use a bearer token.
+func (s *Server) assessmentRoutes(g *echo.Group) {
+	g.GET("/patients/:case/assessment", s.handleAssessment)
+	g.GET("/api/v1/patients/:case/assessment", s.handleAssessmentAPI)
+}
+
+// assessmentSections are the patient page's outcome summary and its
+// pictures, shown right after the patient's details.
+func (s *Server) assessmentSections() []patientSection {
+	return []patientSection{s.outcomeSection, s.picturesSection}
+}
+
+// siteQuery is the release site a request names with ?elevation_m= and
+// ?temp_c=, as typed.
+type siteQuery struct {
+	Elevation, Temp string
+}
+
+// siteQueryOf reads the site parameters of a request.
+func siteQueryOf(c echo.Context) siteQuery {
+	return siteQuery{Elevation: c.QueryParam("elevation_m"), Temp: c.QueryParam("temp_c")}
+}
+
+// empty reports whether the request names no site: the centre's is meant.
+func (q siteQuery) empty() bool {
+	return strings.TrimSpace(q.Elevation) == "" && strings.TrimSpace(q.Temp) == ""
+}
+
+// encode returns the query string naming the site, "" for the centre's.
+func (q siteQuery) encode() string {
+	if q.empty() {
+		return ""
+	}
+	v := url.Values{}
+	if t := strings.TrimSpace(q.Elevation); t != "" {
+		v.Set("elevation_m", t)
+	}
+	if t := strings.TrimSpace(q.Temp); t != "" {
+		v.Set("temp_c", t)
+	}
+	return "?" + v.Encode()
+}
+
+// site converts the query to a site within the model's range: nil (the
+// centre's) when the query is empty. A missing elevation with a temperature
+// given is the centre's elevation. Errors name the parameter.
+func (s *Server) site(c echo.Context, q siteQuery) (*assess.Site, assess.ValidationErrors) {
+	if q.empty() {
+		return nil, nil
+	}
+	var errs assess.ValidationErrors
+	st := assess.Site{}
+	if strings.TrimSpace(q.Elevation) == "" {
+		def, _, err := s.store.DefaultSite(c.Request().Context())
+		if err != nil {
+			return nil, assess.ValidationErrors{{Field: "elevation_m", Message: "give the release site's elevation in metres: the centre has none"}}
+		}
+		st.ElevationM = def.ElevationM
+	} else if v, verr := parseFloatField("elevation_m", q.Elevation, false); verr != nil {
+		errs = append(errs, verr)
+	} else {
+		st.ElevationM = v
+	}
+	t, verr := parseOptFloat("temp_c", q.Temp)
+	if verr != nil {
+		errs = append(errs, verr)
+	}
+	st.TempC = t
+	if len(errs) > 0 {
+		return nil, errs
+	}
+	if err := st.Validate(); err != nil {
+		return nil, asValidation(err)
+	}
+	return &st, nil
+}
+
+// siteLabel names a site in words for the page and the chart: the centre's
+// own, or a release site, with its elevation and temperature.
+func (s *Server) siteLabel(c echo.Context, site *assess.Site) string {
+	var st assess.Site
+	name := "a release site"
+	if site == nil {
+		def, centre, err := s.store.DefaultSite(c.Request().Context())
+		if err == nil {
+			st, name = def, centre
+		}
+	} else {
+		st = *site
+	}
+	temp := "standard atmosphere"
+	if st.TempC != nil {
+		temp = strconv.FormatFloat(*st.TempC, 'f', -1, 64) + " °C"
+	}
+	return fmt.Sprintf("%s, %s m, %s", name, strconv.FormatFloat(st.ElevationM, 'f', -1, 64), temp)
+}
+
+// ctxAssessment caches the assessment of a patient at the centre's site for
+// one request: the outcome summary and the pictures share it.
+const ctxAssessment = "aloft.assessment"
+
+type cachedAssessment struct {
+	caseNumber string
+	a          assess.Assessment
+	err        error
+}
+
+// assessment evaluates patient p at site (nil: the centre's) through the
+// store's one path to the engine, at the server's clock.
+func (s *Server) assessment(c echo.Context, p records.Patient, site *assess.Site) (assess.Assessment, error) {
+	if site == nil {
+		if got, ok := c.Get(ctxAssessment).(*cachedAssessment); ok && got.caseNumber == p.CaseNumber {
+			return got.a, got.err
+		}
+	}
+	a, err := s.store.Assess(c.Request().Context(), p, site, s.now())
+	if site == nil {
+		c.Set(ctxAssessment, &cachedAssessment{caseNumber: p.CaseNumber, a: a, err: err})
+	}
+	return a, err
+}
+
+// failedSentence logs err with an incident id and returns the sentence a
+// person sees instead of the assessment.
+func (s *Server) failedSentence(c echo.Context, what string, err error) string {
+	id := incidentID()
+	s.log.Error("assessment failed", "incident", id, "path", c.Request().URL.Path, "err", err)
+	return fmt.Sprintf("The %s could not be worked out from these records. If it persists, quote incident %s to your administrator.", what, id)
+}
+
+// outcomeSection is the patient page's outcome summary. A failing
+// assessment is logged and shown as a sentence, and the rest of the page
+// still renders.
+func (s *Server) outcomeSection(c echo.Context, p records.Patient) (views.Section, bool, error) {
+	sum := views.OutcomeSummary{Case: p.CaseNumber, InCare: p.InCare(), SiteLabel: s.siteLabel(c, nil)}
+	a, err := s.assessment(c, p, nil)
+	if err != nil {
+		sum.Failed = s.failedSentence(c, "assessment", err)
+	} else {
+		sum.Outcome, sum.At = a.Outcome, a.EvaluatedAt
+	}
+	return views.Section{ID: "assessment", Title: "Assessment (advice only)", Body: views.OutcomeSummaryBody(sum)}, true, nil
+}
+
+// handleAssessment serves the assessment page at the centre's site or the
+// one the query names. A bad site shows the form again with the message
+// (422) and the assessment at the centre's site.
+func (s *Server) handleAssessment(c echo.Context) error {
+	p, err := s.patientFromPath(c)
+	if err != nil {
+		return err
+	}
+	q := siteQueryOf(c)
+	site, verrs := s.site(c, q)
+	status := http.StatusOK
+	if len(verrs) > 0 {
+		status, site = http.StatusUnprocessableEntity, nil
+	}
+	a, err := s.assessment(c, p, site)
+	if err != nil {
+		return err
+	}
+	v := views.AssessmentView{Patient: p, A: a, SiteLabel: s.siteLabel(c, site),
+		Site:    views.SiteForm{Action: "/patients/" + p.CaseNumber + "/assessment", Elevation: q.Elevation, Temp: q.Temp, Errors: verrs},
+		Physics: views.PhysicsRows(a), SiteRows: views.SiteRows(a), ParamRows: views.ParamRows(a),
+		ModelCautions: s.modelCautions()}
+	if strings.TrimSpace(v.Site.Elevation) == "" {
+		v.Site.Elevation = strconv.FormatFloat(a.Site.ElevationM, 'f', -1, 64)
+	}
+	v.Power = powerChartView(p, a, v.SiteLabel, siteQuery{}.encode())
+	if site != nil {
+		v.Power = powerChartView(p, a, v.SiteLabel, q.encode())
+	}
+	return render(c, status, views.AssessmentPage(s.meta(c, p.CaseNumber+" assessment"), v))
+}
+
+// modelCautions returns CAUTIONS.md's limits of the flight model.
+func (s *Server) modelCautions() []string {
+	for _, sec := range views.ParseCautions(s.cfg.Cautions) {
+		if strings.Contains(strings.ToLower(sec.Heading), "flight model") {
+			return sec.Items
+		}
+	}
+	return nil
+}
