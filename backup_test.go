@@ -12,16 +12,12 @@ import (
 	"aloft/records"
 )
 
-// TestBackup_UnderWriteLoad runs `aloft backup` while several clients post
+// testBackupUnderLoad runs `aloft backup` while several clients post
 // intakes to a live server, then checks the backup: SQLite's integrity
 // check passes, every admission acknowledged before the backup began is in
 // it exactly once, nothing is half-written; and `aloft restore` of it gives
-// a database a new server serves.
-func TestBackup_UnderWriteLoad(t *testing.T) {
-	if testing.Short() {
-		t.Skip("builds and runs the server: not in -short")
-	}
-	bin := buildAloft(t)
+// a database a new server serves. (Run by TestCrashAndBackup_RealServer.)
+func testBackupUnderLoad(t *testing.T, bin string) {
 	dir := t.TempDir()
 	db, bak, restored := filepath.Join(dir, "live.db"), filepath.Join(dir, "backup.db"), filepath.Join(dir, "restored.db")
 	runAloft(t, bin, "demo", "--db", db, "--seed-only")

@@ -53,13 +53,19 @@ func runAloft(t *testing.T, bin string, args ...string) string {
 	t.Helper()
 	ctx, cancel := context.WithTimeout(context.Background(), time.Minute)
 	defer cancel()
-	cmd := exec.CommandContext(ctx, bin, args...)
-	cmd.Env = cleanEnv()
-	out, err := cmd.CombinedOutput()
+	out, err := aloftCmd(ctx, bin, args...).CombinedOutput()
 	if err != nil {
 		t.Fatalf("aloft %s: %v\n%s", strings.Join(args, " "), err, out)
 	}
 	return string(out)
+}
+
+// aloftCmd is one aloft command, in the clean environment, killed when ctx
+// ends.
+func aloftCmd(ctx context.Context, bin string, args ...string) *exec.Cmd {
+	cmd := exec.CommandContext(ctx, bin, args...)
+	cmd.Env = cleanEnv()
+	return cmd
 }
 
 // aloftServer is `aloft serve` running as a child process.
@@ -215,7 +221,8 @@ type intakeLoad struct {
 	failed []string // statuses other than 303 while the server was meant to be up
 	cancel context.CancelFunc
 	wg     sync.WaitGroup
-	down   chan struct{} // closed when the server is about to go away
+	down   chan struct{} // closed when the writers or the server are about to stop
+	once   sync.Once
 }
 
 // startIntakes runs writers clients, each admitting up to perWriter
@@ -249,6 +256,10 @@ func startIntakes(c *formClient, prefix string, writers, perWriter int) *intakeL
 	}
 	return l
 }
+
+// goingDown says that errors from now on are expected: the writers are
+// stopping, or the server is about to be killed.
+func (l *intakeLoad) goingDown() { l.once.Do(func() { close(l.down) }) }
 
 func (l *intakeLoad) isDown() bool {
 	select {
@@ -287,6 +298,7 @@ func (l *intakeLoad) ackedBefore(t time.Time) []string {
 
 // stop ends the writers and waits for them.
 func (l *intakeLoad) stop() {
+	l.goingDown()
 	l.cancel()
 	l.wg.Wait()
 }
@@ -346,15 +358,25 @@ func checkWhole(t *testing.T, db string) {
 	}
 }
 
-// TestCrash_SIGKILLKeepsAcknowledgedWrites kills the server with SIGKILL
-// while several clients post intakes, restarts it, and checks that every
-// admission it acknowledged is there exactly once, that nothing is
-// half-written, and that SQLite's integrity check passes.
-func TestCrash_SIGKILLKeepsAcknowledgedWrites(t *testing.T) {
+// TestCrashAndBackup_RealServer builds the aloft command once and runs the
+// fault tests against it: a SIGKILL in the middle of concurrent writes,
+// and a backup taken under write load.
+func TestCrashAndBackup_RealServer(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds and runs the server: not in -short")
 	}
+	start := time.Now()
 	bin := buildAloft(t)
+	t.Logf("go build took %s", time.Since(start).Round(time.Millisecond))
+	t.Run("SIGKILLKeepsAcknowledgedWrites", func(t *testing.T) { testCrashSIGKILL(t, bin) })
+	t.Run("BackupUnderWriteLoad", func(t *testing.T) { testBackupUnderLoad(t, bin) })
+}
+
+// testCrashSIGKILL kills the server with SIGKILL while several clients
+// post intakes, restarts it, and checks that every admission it
+// acknowledged is there exactly once, that nothing is half-written, and
+// that SQLite's integrity check passes.
+func testCrashSIGKILL(t *testing.T, bin string) {
 	db := filepath.Join(t.TempDir(), "crash.db")
 	runAloft(t, bin, "demo", "--db", db, "--seed-only")
 	srv := startServer(t, bin, db)
@@ -362,7 +384,7 @@ func TestCrash_SIGKILLKeepsAcknowledgedWrites(t *testing.T) {
 	if !load.waitAcked(40) {
 		t.Fatalf("fewer than 40 intakes acknowledged in 30 s: %v", load.failed)
 	}
-	close(load.down)
+	load.goingDown()
 	srv.kill()
 	load.stop()
 	if len(load.failed) > 0 {

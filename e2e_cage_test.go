@@ -217,11 +217,16 @@ func checkTapTargets(t *testing.T, b *browsertest.Browser) {
 	if len(boxes) < 20 {
 		t.Fatalf("measured %d tap targets, want the whole tap page (at least 20)", len(boxes))
 	}
+	smallest := boxes[0]
 	for _, bx := range boxes {
+		if min(bx.Width, bx.Height) < min(smallest.Width, smallest.Height) {
+			smallest = bx
+		}
 		if bx.Width < minTapPx || bx.Height < minTapPx {
 			t.Errorf("tap target %q is %.0f × %.0f CSS px, want at least %d × %d", bx.Name, bx.Width, bx.Height, minTapPx, minTapPx)
 		}
 	}
+	t.Logf("measured %d tap targets; the smallest, %q, is %.0f × %.0f CSS px", len(boxes), smallest.Name, smallest.Width, smallest.Height)
 	for _, sel := range []string{"[data-testid=pass-plus]", "[data-testid=land-controlled]", "[data-testid=watch-toggle]",
 		"[data-testid=highest-high-perch]", "[data-testid=switch-open_mouth]", "[data-testid=droop-left]", "[data-testid=save]"} {
 		if r := b.Box(sel); r.Width < minTapPx || r.Height < minTapPx {

@@ -254,9 +254,8 @@ func (d *doc) table(cols []column, rows [][]cell, size float64) {
 	d.space(2.5)
 }
 
-// keepTable is table, started on a new page unless the whole table fits on
-// this one (a table longer than a page still breaks).
-func (d *doc) keepTable(cols []column, rows [][]cell, size float64) {
+// tableHeight is the height a table will take on one page.
+func (d *doc) tableHeight(cols []column, rows [][]cell, size float64) float64 {
 	lh := size * 0.3528 * 1.28
 	widths := make([]float64, len(cols))
 	for i, c := range cols {
@@ -266,8 +265,18 @@ func (d *doc) keepTable(cols []column, rows [][]cell, size float64) {
 	for _, row := range rows {
 		h += d.rowHeight(row, widths, size, lh)
 	}
-	if h < d.bottom()-marginTop {
+	return h
+}
+
+// keptTable is a subsection whose table starts on a new page unless the
+// heading and the whole table fit on this one (a table longer than a page
+// still breaks).
+func (d *doc) keptTable(title string, cols []column, rows [][]cell, size float64) {
+	if h := d.tableHeight(cols, rows, size) + 9; h < d.bottom()-marginTop {
 		d.need(h)
+	}
+	if title != "" {
+		d.subsection(title)
 	}
 	d.table(cols, rows, size)
 }
@@ -387,6 +396,9 @@ func (d *doc) drawCell(c cell, x, y, w float64, align string, size, lh float64) 
 	d.colour(colText)
 }
 
+// factLine is the line height of a fact's value, mm.
+const factLine = 4.1
+
 // facts draws label–value pairs in two columns; a lone pair spans both.
 func (d *doc) facts(pairs [][2]string) {
 	half := d.contentW() / 2
@@ -400,7 +412,7 @@ func (d *doc) facts(pairs [][2]string) {
 		h := 0.0
 		d.font("", sizeBody)
 		for _, p := range row {
-			h = max(h, float64(len(d.wrapPlain(p[1], valueW)))*lineBody)
+			h = max(h, float64(len(d.wrapPlain(p[1], valueW)))*factLine)
 		}
 		d.need(h + 1)
 		y := d.y()
@@ -412,12 +424,12 @@ func (d *doc) facts(pairs [][2]string) {
 			d.font("", sizeBody)
 			d.colour(colText)
 			for n, s := range d.wrapPlain(p[1], valueW) {
-				d.pdf.Text(x+labelW, y+3.2+float64(n)*lineBody, s)
+				d.pdf.Text(x+labelW, y+3.2+float64(n)*factLine, s)
 			}
 		}
-		d.pdf.SetY(y + h + 0.8)
+		d.pdf.SetY(y + h + 0.6)
 	}
-	d.space(1.5)
+	d.space(1.2)
 }
 
 // wrapPlain splits text in the current font to width w.

@@ -11,14 +11,14 @@ import (
 // reasons, and the key figures.
 func (r *report) summary() error {
 	d, in, a := r.doc, r.in, r.in.Assessment
-	d.font("B", 18)
+	d.font("B", 17)
 	d.colour(colNavy)
 	d.pdf.SetX(marginSide)
-	d.pdf.CellFormat(d.contentW(), 9, "Pre-release flight assessment", "", 1, "L", false, 0, "")
+	d.pdf.CellFormat(d.contentW(), 8, "Pre-release flight assessment", "", 1, "L", false, 0, "")
 	d.para("Advisory report for the licensed rehabilitator and the veterinarian, who decide. "+
-		"It brings together the records, the flight model's estimate and the criteria the centre applies.", "", sizeBody, lineBody, colGrey)
+		"It brings together the records, the flight model's estimate and the criteria the centre applies.", "", 9, 4, colGrey)
 	d.para(r.stampWords(), "I", sizeSmall, lineSmall, colGrey)
-	d.space(3)
+	d.space(2.5)
 
 	p := in.Patient
 	sp := a.Species
@@ -78,8 +78,8 @@ func (r *report) outcomeBox() {
 	t := outcomeTone(o.Level)
 	d.font("", sizeBody)
 	lines := d.pdf.SplitText(outcomeMeaning(o.Level), d.contentW()-14)
-	h := 15 + float64(len(lines))*lineBody
-	d.need(h + 4)
+	h := 14 + float64(len(lines))*lineBody
+	d.need(h + 3)
 	y := d.y()
 	d.fill(t.fill)
 	d.pdf.Rect(marginSide, y, d.contentW(), h, "F")
@@ -95,7 +95,7 @@ func (r *report) outcomeBox() {
 	for i, s := range lines {
 		d.pdf.Text(marginSide+7, y+16+float64(i)*lineBody, s)
 	}
-	d.pdf.SetY(y + h + 4)
+	d.pdf.SetY(y + h + 3)
 }
 
 // reasons lists the criteria that decided the outcome, the referrals when
@@ -137,7 +137,7 @@ func (r *report) reasonTable(rs []assess.OutcomeReason) {
 		}
 		rows = append(rows, []cell{st, {lines: []line{{text: title, style: "B"}}}, reason})
 	}
-	r.keepTable([]column{{"Status", 0.16, "L"}, {"Criterion", 0.32, "L"}, {"Reason", 0.52, "L"}}, rows, 8.5)
+	r.table([]column{{"Status", 0.16, "L"}, {"Criterion", 0.32, "L"}, {"Reason", 0.52, "L"}}, rows, 8.5)
 }
 
 // groupClearances groups the reasons: clearance items of the same status
@@ -185,9 +185,10 @@ func clearanceReasons(g []assess.OutcomeReason) cell {
 // the healthy reference's at the same site.
 func (r *report) keyFigures() {
 	d, a := r.doc, r.in.Assessment
-	d.subsection("Key figures at the release site")
+	const title = "Key figures at the release site"
 	ph := a.Physics
 	if ph == nil {
+		d.subsection(title)
 		d.body("The flight model was not run for this patient: " + strings.Join(physicsNotes(a), " ") +
 			" The criteria that rest on it are not assessed.")
 		return
@@ -210,13 +211,10 @@ func (r *report) keyFigures() {
 		{txt("Power margin M (available over minimum power)"), txt(fixed(ph.PowerMargin, 2, "×")),
 			txt(fixed(ph.ExpectedMarginSite, 2, "×") + " (" + fixed(ph.ExpectedMargin, 2, "×") + " at sea level)")},
 		{txt("Share of a healthy bird's spare power E"), txt(excessWords(ph.ExcessPowerFraction)), txt("1.00 by definition")},
-		{txt("Climb rate at V_mp"), txt(fixed(ph.ClimbRateMS, 2, "m/s")), txt("—")},
 		{txt("Takeoff index T (burst over hovering power)"), txt(fixed(ph.TakeoffIndex, 2, "") + ": " + ph.TakeoffBandLabel), txt("—")},
-		{txt("Sustainable speed window"), txt(windowWords(ph.FlightResult)), txt("—")},
 	}
-	d.keepTable([]column{{"Figure", 0.40, "L"}, {"This bird", 0.36, "L"}, {"Healthy reference, same site", 0.24, "L"}}, rows, 8.5)
-	d.note("Model figures are estimates for an average healthy bird of the species, scaled to this bird's records (see “Flight model at the release site”). " +
-		"Every formula and constant is sourced under “Sources”.")
+	d.keptTable(title, []column{{"Figure", 0.40, "L"}, {"This bird", 0.36, "L"}, {"Healthy bird, same site", 0.24, "L"}}, rows, 8.5)
+	d.note("Model estimates for an average healthy bird of the species, scaled to this bird's records; every formula is sourced under “Sources”.")
 }
 
 // excessWords formats the excess-power fraction E.

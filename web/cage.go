@@ -30,7 +30,6 @@ const maxGroupBirds = 50
 
 // cageRoutes adds the cage-side page, its plain-form fallback and its API.
 func (s *Server) cageRoutes(g *echo.Group) {
-	s.echo.Pre(s.cageAuthFirst)
 	g.GET("/cage/group", s.handleCageGroup)
 	g.POST("/cage/group", s.handleCageGroupPost)
 	g.GET("/cage/:case", s.handleCage)

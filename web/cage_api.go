@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"io"
 	"net/http"
-	"regexp"
 	"strings"
 	"time"
 	"unicode/utf8"
@@ -342,30 +341,4 @@ func (s *Server) handleListFlightSessions(c echo.Context) error {
 func (s *Server) handleCSRFToken(c echo.Context) error {
 	c.Response().Header().Set("Cache-Control", "no-store")
 	return c.JSON(http.StatusOK, map[string]string{"csrf_token": session(c).CSRFToken})
-}
-
-// cageAPIPath matches the flight-session API's path.
-var cageAPIPath = regexp.MustCompile(`^/api/v1/patients/[^/]+/flight-sessions/?$`)
-
-// cageAuthFirst answers 401 to a session posted without a live login. It
-// runs before routing, so before the CSRF check, which would otherwise
-// refuse the stale token of an ended login with 403: the page must know
-// that the login ended (to offer a new one), not that its form expired.
-// Nothing is done for the request; the draft stays on the phone.
-func (s *Server) cageAuthFirst(next echo.HandlerFunc) echo.HandlerFunc {
-	return func(c echo.Context) error {
-		r := c.Request()
-		if r.Method != http.MethodPost || !cageAPIPath.MatchString(r.URL.Path) || strings.HasPrefix(r.Header.Get("Authorization"), "Bearer ") {
-			return next(c)
-		}
-		if ck, err := c.Cookie(sessionCookie); err == nil && ck.Value != "" {
-			_, err := s.store.LoginSessionByToken(r.Context(), ck.Value)
-			if !errors.Is(err, records.ErrNotFound) {
-				return next(c) // live, or a store error that loadSession reports
-			}
-		}
-		return securityHeaders(func(echo.Context) error {
-			return echo.NewHTTPError(http.StatusUnauthorized, "Your login has ended. Log in again; the session is kept on this phone.")
-		})(c)
-	}
 }

@@ -47,7 +47,7 @@ func (s *Server) routes() {
 // featureRoutes lists the route sets of the record features, each adding
 // its own routes to the logged-in group.
 func (s *Server) featureRoutes() []func(*echo.Group) {
-	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes, s.chartRoutes, s.assessmentRoutes}
+	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes, s.chartRoutes, s.assessmentRoutes, s.reportRoutes}
 }
 
 // sections lists, in page order, the feature blocks of the patient page and
@@ -58,6 +58,7 @@ func (s *Server) sections() {
 	s.patientSections = append(s.patientSections, s.clinicalSections()...)
 	s.patientSections = append(s.patientSections, s.cageSections()...)
 	s.patientSections = append(s.patientSections, s.dispositionSections()...)
+	s.patientSections = append(s.patientSections, s.reportSections()...)
 	s.patientsExtras = append(s.patientsExtras, s.clinicalExtras()...)
 }
 

@@ -241,22 +241,6 @@ func StatusWords(s assess.Status) string {
 // aStatusClass is the badge class of a status.
 func aStatusClass(s assess.Status) string { return "badge badge-" + string(s) }
 
-// LevelWords names an outcome level in a few words, for its badge; the
-// outcome's Label says it in full.
-func LevelWords(l assess.OutcomeLevel) string {
-	switch l {
-	case assess.OutcomeReady:
-		return "Ready for review"
-	case assess.OutcomeContinue:
-		return "Keep conditioning"
-	case assess.OutcomeRefer:
-		return "For the vet"
-	case assess.OutcomeInsufficient:
-		return "Too little evidence"
-	}
-	return string(l)
-}
-
 // aLevelClass is the badge class of an outcome level, reusing the status
 // colours: ready as met, continue as borderline, refer as unmet.
 func aLevelClass(l assess.OutcomeLevel) string {
