@@ -44,6 +44,7 @@ func commands() []command {
 		{"species", "list or show the species reference", cmdSpecies},
 		{"assess", "assess a patient's readiness for release", cmdAssess},
 		{"export", "export case records for permit reporting", cmdExport},
+		{"report", "write a patient's pre-release PDF report", cmdReport},
 	}
 }
 

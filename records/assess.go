@@ -9,9 +9,16 @@ import (
 )
 
 // Thresholds returns the assessment thresholds in force at the centre: the
-// defaults with the centre's own settings applied.
+// defaults with the centre's own settings applied (each with provenance
+// centre-setting, who and when). A stored setting that can no longer be
+// applied is left out: the default stands, and the settings page says so.
 func (s *Store) Thresholds(ctx context.Context) (assess.Thresholds, error) {
-	return assess.DefaultThresholds(), nil
+	list, err := s.ThresholdSettings(ctx)
+	if err != nil {
+		return assess.Thresholds{}, err
+	}
+	th, _ := ApplyThresholdSettings(list)
+	return th, nil
 }
 
 // DefaultSite is the centre's own elevation with the standard atmosphere:

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"slices"
+	"strings"
 	"time"
 
 	"aloft/records"
@@ -66,7 +67,7 @@ func RenderSignOffSheet(w io.Writer, in SignOffSheetInput, opts Options) error {
 		"certutil -hashfile FILE SHA256 on Windows) and compare it with the hash above, character by character. A sign-off covers " +
 		"exactly the file with the hash it names.")
 	d.subsection("Sign-offs")
-	d.table([]column{{"Role", 0.16, "L"}, {"Name", 0.18, "L"}, {"Signed", 0.14, "L"}, {"Hash signed", 0.28, "L"}, {"Comment", 0.24, "L"}},
+	d.table([]column{{"Role", 0.17, "L"}, {"Name", 0.17, "L"}, {"Signed", 0.16, "L"}, {"Hash signed", 0.28, "L"}, {"Comment", 0.22, "L"}},
 		d.signOffRows(v), sizeSmall)
 	d.body("Each sign-off was made in Aloft by the person named, after entering their password again. It records their review of " +
 		"this version; the decision rests with the licensed rehabilitator and the veterinarian, under local law and the conditions " +
@@ -99,11 +100,11 @@ func (d *doc) signOffRows(v records.ReportVersion) [][]cell {
 			match.text = "DIFFERS FROM THE REPORT"
 		}
 		hash := cell{lines: []line{{text: splitHash(so.SHA256), mono: true, size: 6.5}, match}}
-		rows = append(rows, []cell{txt(roleWords(string(so.Role))), txt(so.UserName), txt(d.dateTime(so.At)), hash, txt(so.Comment)})
+		rows = append(rows, []cell{txt(capital(roleWords(string(so.Role)))), txt(so.UserName), txt(d.dateTime(so.At)), hash, txt(so.Comment)})
 	}
 	for _, role := range records.SignOffRoles {
 		if !slices.ContainsFunc(v.SignOffs, func(so records.SignOff) bool { return so.Role == role }) {
-			rows = append(rows, []cell{txt(roleWords(string(role))), {lines: []line{{text: "not signed yet", style: "I", grey: true}}},
+			rows = append(rows, []cell{txt(capital(roleWords(string(role)))), {lines: []line{{text: "not signed yet", style: "I", grey: true}}},
 				txt("—"), txt("—"), txt("")})
 		}
 	}
@@ -116,4 +117,13 @@ func splitHash(h string) string {
 		return h
 	}
 	return h[:32] + "\n" + h[32:]
+}
+
+// capital upper-cases the first letter of s.
+func capital(s string) string {
+	if s == "" {
+		return s
+	}
+	r := []rune(s)
+	return strings.ToUpper(string(r[0])) + string(r[1:])
 }

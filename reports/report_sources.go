@@ -208,13 +208,16 @@ func (r *report) sources() error {
 	d.table([]column{{"Source", 0.10, "L"}, {"Of the thresholds above", 0.90, "L"}}, rows, 7.5)
 	d.subsection("Species reference: " + a.Species.CommonName + " (" + a.Species.ScientificName + ")")
 	rows = rows[:0]
-	for _, k := range speciesSourceKeys(a.Species.Sources) {
-		s := a.Species.Sources[k]
+	for _, k := range speciesSourceLabels {
+		s, ok := a.Species.Sources[k.key]
+		if !ok {
+			continue
+		}
 		src := s.Citation
 		if s.Note != "" {
 			src += " (" + s.Note + ")"
 		}
-		rows = append(rows, []cell{txt(strings.ReplaceAll(k, "_", " ")), txt(provenanceWords(s.Provenance)), txt(src)})
+		rows = append(rows, []cell{txt(k.label), txt(provenanceWords(s.Provenance)), txt(src)})
 	}
 	d.table([]column{{"Value", 0.18, "L"}, {"Basis", 0.14, "L"}, {"Source", 0.68, "L"}}, rows, 7.5)
 	return nil
@@ -309,17 +312,15 @@ func roundTo(x float64, digits int) float64 {
 	return float64(int64(x*p+0.5)) / p
 }
 
-// speciesSourceKeys lists the species' sources the assessment reads, in
-// a fixed order.
-func speciesSourceKeys(src map[string]assess.SourceRef) []string {
-	keys := []string{"mass_g.female", "mass_g.male", "mass_g.pooled", "mass_range_g", "span_mm", "area_cm2", "span_area_estimated",
-		"expected_margin", "flight_muscle_fraction", "passerine", "migrant", "group", "launch_mode", "primaries", "secondaries",
-		"rectrices", "min_passes", "min_prerelease_days", "waterproof_days", "release_min_mass_g", "release_guide", "enclosure_class"}
-	var out []string
-	for _, k := range keys {
-		if _, ok := src[k]; ok {
-			out = append(out, k)
-		}
-	}
-	return out
+// speciesSourceLabels names, in order, the species' values the
+// assessment reads.
+var speciesSourceLabels = []struct{ key, label string }{
+	{"mass_g.female", "Mean mass, female"}, {"mass_g.male", "Mean mass, male"}, {"mass_g.pooled", "Mean mass, sexes pooled"},
+	{"mass_range_g", "Mass range"}, {"span_mm", "Wingspan"}, {"area_cm2", "Wing area"},
+	{"span_area_estimated", "Span and area estimated"}, {"expected_margin", "Healthy power margin"},
+	{"flight_muscle_fraction", "Flight-muscle fraction"}, {"passerine", "Passerine"}, {"migrant", "Migrant"},
+	{"group", "Species group"}, {"launch_mode", "Usual launch"}, {"primaries", "Primaries"}, {"secondaries", "Secondaries"},
+	{"rectrices", "Tail feathers"}, {"min_passes", "Unbroken passes wanted"}, {"min_prerelease_days", "Days in pre-release housing"},
+	{"waterproof_days", "Days waterproof"}, {"release_min_mass_g", "Lowest release mass"}, {"release_guide", "Release guide"},
+	{"enclosure_class", "Enclosure class"},
 }

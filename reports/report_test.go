@@ -288,7 +288,7 @@ func TestRenderSignOffSheet(t *testing.T) {
 	flat := strings.Join(strings.Fields(pages[0]), " ")
 	h := in.Version.SHA256
 	for _, want := range []string{"Sign-off sheet", in.Patient.CaseNumber, h, h[:32], h[32:], "Dr Vet Tester", "matches the report",
-		"DIFFERS FROM THE REPORT", "licensed rehabilitator", "not signed yet", "Wing sound; flies level.", "Report version"} {
+		"DIFFERS FROM THE REPORT", "Licensed rehabilitator", "not signed yet", "Wing sound; flies level.", "Report version"} {
 		if !strings.Contains(flat, want) {
 			t.Errorf("the sign-off sheet lacks %q:\n%s", want, flat)
 		}

@@ -184,10 +184,12 @@ func (s *Server) handleAssessment(c echo.Context) error {
 	if strings.TrimSpace(v.Site.Elevation) == "" {
 		v.Site.Elevation = strconv.FormatFloat(a.Site.ElevationM, 'f', -1, 64)
 	}
-	v.Power = powerChartView(p, a, v.SiteLabel, siteQuery{}.encode())
+	query := ""
 	if site != nil {
-		v.Power = powerChartView(p, a, v.SiteLabel, q.encode())
+		query = q.encode()
 	}
+	v.Power = powerChartView(p, a, v.SiteLabel, query)
+	v.Power.Title = "" // the section's heading names it
 	return render(c, status, views.AssessmentPage(s.meta(c, p.CaseNumber+" assessment"), v))
 }
 

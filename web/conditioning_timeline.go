@@ -104,6 +104,9 @@ func condMassTrend(ws []assess.WeighIn) string {
 	return fmt.Sprintf(" · %+.1f %% since %s", pct, condDate(first.At))
 }
 
+// timelineShown is how many records an unfiltered timeline shows at first.
+const timelineShown = 12
+
 func (s *Server) condTimelineSection(c echo.Context, p records.Patient) (views.Section, bool, error) {
 	cx := s.condCtxFor(c, p)
 	filter := records.Kind(c.QueryParam("kind"))
@@ -124,7 +127,15 @@ func (s *Server) condTimelineSection(c echo.Context, p records.Patient) (views.S
 		t.Filters = append(t.Filters, views.TimelineFilter{Href: base + "?kind=" + string(ck.kind) + "#conditioning-history",
 			Label: ck.plural, Current: filter == ck.kind})
 	}
-	for _, versions := range condGroupVersions(es) {
+	groups := condGroupVersions(es)
+	// A long stay makes a long history: unfiltered, the newest records are
+	// shown and the rest are one tap away.
+	if filter == "" && c.QueryParam("all") != "1" && len(groups) > timelineShown {
+		t.Hidden = len(groups) - timelineShown
+		t.AllHref = base + "?all=1#conditioning-history"
+		groups = groups[:timelineShown]
+	}
+	for _, versions := range groups {
 		t.Items = append(t.Items, s.timelineItem(cx, versions))
 	}
 	return views.Section{ID: "conditioning-history", Title: "Conditioning records", Body: views.TimelineBody(t)}, true, nil

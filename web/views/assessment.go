@@ -62,6 +62,12 @@ type Piece struct {
 	Scale float64
 }
 
+// Glued reports whether the piece follows the one before without a space:
+// words that start with punctuation.
+func (p Piece) Glued() bool {
+	return !p.IsNum() && p.Text != "" && strings.ContainsAny(p.Text[:1], ";:,.)")
+}
+
 // IsNum reports whether the piece is a number.
 func (p Piece) IsNum() bool { return p.Path != "" }
 
@@ -272,6 +278,14 @@ func ProvenanceWords(p assess.Provenance) string {
 		return "From memory, not checked against a source"
 	}
 	return string(p)
+}
+
+// ProvenanceText is a provenance in words with its source.
+func ProvenanceText(b assess.Basis) string {
+	if b.Source == "" {
+		return ProvenanceWords(b.Kind)
+	}
+	return ProvenanceWords(b.Kind) + ": " + b.Source
 }
 
 // aReasonLine is one reason of an outcome in words.

@@ -94,6 +94,10 @@ type Timeline struct {
 	Filters []TimelineFilter
 	Items   []TimelineItem
 	CanEdit bool
+	// Hidden counts older records left out of a long unfiltered timeline;
+	// AllHref shows them.
+	Hidden  int
+	AllHref string
 }
 
 // TimelineFilter is one filter link of the timeline.
