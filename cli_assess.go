@@ -15,11 +15,12 @@ import (
 	"aloft/records"
 )
 
-const assessSynopsis = "assess (--db FILE --case CASE | --input FILE.json) [--elevation-m M [--temp-c C]] [--at TIME] [--json]"
+const assessSynopsis = "assess (--db FILE --case CASE | --input FILE.json) [--site NAME | --elevation-m M] [--temp-c C] [--at TIME] [--json]"
 
 // assessFlags are the flags of `aloft assess`.
 type assessFlags struct {
 	db, caseNumber, input, at string
+	siteName                  string
 	elevationM, tempC         optFloat
 	json                      bool
 }
@@ -29,6 +30,7 @@ func (f *assessFlags) register(fs *flag.FlagSet) {
 	fs.StringVar(&f.caseNumber, "case", "", "case `number` in the database, e.g. 2025-0042")
 	fs.StringVar(&f.input, "input", "", "case file `FILE.json` to assess instead (- for standard input)")
 	fs.Var(&f.elevationM, "elevation-m", "release site elevation, `metres` (−500 to 5000; default: the case file's site, else the centre's elevation)")
+	fs.StringVar(&f.siteName, "site", "", "a release site of the database by `name` (with --db; its elevation)")
 	fs.Var(&f.tempC, "temp-c", "air temperature at the release site, `°C` (−40 to 50; with --elevation-m; default: the standard atmosphere's)")
 	fs.StringVar(&f.at, "at", "", "assess as of this `time`, RFC 3339 (default: now); evidence older than a week before it is stale")
 	fs.BoolVar(&f.json, "json", false, "print the assessment as one JSON object")
@@ -57,6 +59,11 @@ func cmdAssess(ctx context.Context, args []string, cio cmdIO) int {
 	if site != nil {
 		if err := site.Validate(); err != nil {
 			return usageErr(cio, "assess", "%s", flagErrors(fs, err))
+		}
+	}
+	if f.siteName != "" {
+		if site, err = namedSite(ctx, f.db, f.siteName, f.tempC.ptr()); err != nil {
+			return usageErr(cio, "assess", "--site: %v", err)
 		}
 	}
 	var (
@@ -91,8 +98,12 @@ func (f *assessFlags) check() string {
 		return "give --input FILE.json, or --db FILE --case CASE"
 	case f.input == "" && f.db == "":
 		return "--case needs --db FILE"
-	case f.tempC.set && !f.elevationM.set:
-		return "--temp-c needs --elevation-m (the temperature belongs to a release site)"
+	case f.siteName != "" && f.elevationM.set:
+		return "give either --site NAME or --elevation-m M, not both"
+	case f.siteName != "" && f.input != "":
+		return "--site needs --db FILE --case CASE: the sites are the database's"
+	case f.tempC.set && !f.elevationM.set && f.siteName == "":
+		return "--temp-c needs --elevation-m or --site (the temperature belongs to a release site)"
 	}
 	return ""
 }
@@ -115,6 +126,28 @@ func (f *assessFlags) site() *assess.Site {
 		return nil
 	}
 	return &assess.Site{ElevationM: f.elevationM.v, TempC: f.tempC.ptr()}
+}
+
+// namedSite resolves a release site of the database by name, at air
+// temperature tempC (nil: the standard atmosphere's).
+func namedSite(ctx context.Context, db, name string, tempC *float64) (*assess.Site, error) {
+	store, err := openExisting(ctx, db)
+	if err != nil {
+		return nil, err
+	}
+	defer store.Close()
+	r, err := store.ReleaseSiteByName(ctx, name)
+	if errors.Is(err, records.ErrNotFound) {
+		return nil, fmt.Errorf("no release site named %q in %s", name, db)
+	}
+	if err != nil {
+		return nil, err
+	}
+	st := r.Site(tempC)
+	if err := st.Validate(); err != nil {
+		return nil, err
+	}
+	return &st, nil
 }
 
 // caseHeader is the patient line of the text output.

@@ -14,7 +14,7 @@ import (
 	"aloft/assess"
 )
 
-const curveSynopsis = "curve (--mass-g G --span-mm MM --area-cm2 A | --species NAME [--sex female|male] [--mass-g G] [--span-mm MM] [--area-cm2 A]) [--elevation-m M] [--temp-c C] " +
+const curveSynopsis = "curve (--mass-g G --span-mm MM --area-cm2 A | --species NAME [--db FILE] [--sex female|male] [--mass-g G] [--span-mm MM] [--area-cm2 A]) [--elevation-m M] [--temp-c C] " +
 	"[--passerine] [--migrant] [--fat-score N --fat-scale 0-8|0-5] [--muscle-score N] " +
 	"[--params " + "pennycuick2008|pennycuick2013] [--json]"
 
@@ -26,7 +26,7 @@ type curveFlags struct {
 	fatScore, muscleScore              optInt
 	fatScale, params                   string
 	json                               bool
-	species, sex                       string
+	species, sex, db                   string
 }
 
 // register declares the flags on fs.
@@ -45,6 +45,7 @@ func (f *curveFlags) register(fs *flag.FlagSet) {
 	fs.BoolVar(&f.json, "json", false, "print one JSON object")
 	fs.StringVar(&f.species, "species", "", "compare with a healthy bird of this species (scientific or common `name`); mass, span and area default to its reference")
 	fs.StringVar(&f.sex, "sex", "unknown", "the bird's sex, for the species' reference mass: female, male or unknown")
+	fs.StringVar(&f.db, "db", "", "with --species: the centre's database `file`, whose species overrides and added species apply")
 }
 
 // curveOutput is the JSON of `aloft curve`: the flight result, and with
@@ -130,13 +131,14 @@ func cmdCurve(ctx context.Context, args []string, cio cmdIO) int {
 	fs.Visit(func(fl *flag.Flag) { set[fl.Name] = true })
 	var sp *assess.Species
 	if f.species != "" {
-		table, err := assess.LoadSpecies()
-		if err != nil {
+		var err error
+		if sp, err = findCurveSpecies(ctx, f.species, f.db); errors.Is(err, assess.ErrUnknownSpecies) {
+			return usageErr(cio, "curve", "--species: no species named %q (try aloft species list)", f.species)
+		} else if err != nil {
 			return failErr(cio, "curve", err)
 		}
-		if sp, err = table.Find(f.species); err != nil {
-			return usageErr(cio, "curve", "--species: no species named %q (try aloft species list)", f.species)
-		}
+	} else if f.db != "" {
+		return usageErr(cio, "curve", "--db needs --species: the database's species values apply to a species")
 	} else {
 		for _, name := range []string{"mass-g", "span-mm", "area-cm2"} {
 			if !set[name] {
@@ -166,6 +168,24 @@ func cmdCurve(ctx context.Context, args []string, cio cmdIO) int {
 		return usageErr(cio, "curve", "%s", flagErrors(fs, err))
 	}
 	return failErr(cio, "curve", err)
+}
+
+// findCurveSpecies finds a species in the shipped table or, with dbPath, in
+// the centre's table of that database (its overrides and added species).
+func findCurveSpecies(ctx context.Context, name, dbPath string) (*assess.Species, error) {
+	if dbPath == "" {
+		table, err := assess.LoadSpecies()
+		if err != nil {
+			return nil, err
+		}
+		return table.Find(name)
+	}
+	store, err := openExisting(ctx, dbPath)
+	if err != nil {
+		return nil, err
+	}
+	defer store.Close()
+	return store.SpeciesFor(ctx, name)
 }
 
 // printCurve writes r as JSON or as a summary.

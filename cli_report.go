@@ -15,9 +15,9 @@ import (
 // cmdReport writes a patient's pre-release report as a PDF, whatever the
 // patient's status. From the command line the report is a working copy:
 // it is not frozen and cannot be signed (generate it for review in the app
-// for that). The release site is the centre's own elevation unless
-// --elevation-m gives another; named sites (--site) need the sites list,
-// which this installation does not have yet.
+// for that). The release site is the centre's own elevation unless --site
+// names one of the centre's release sites or --elevation-m gives another;
+// --temp-c gives the air temperature there.
 func cmdReport(ctx context.Context, args []string, cio cmdIO) int {
 	fs := newFlags("report", "report --db FILE --case CASE --out FILE.pdf [--site NAME | --elevation-m M [--temp-c C]] [--page-size A4|Letter]", cio)
 	dbPath := fs.String("db", "", "database file")
@@ -35,15 +35,12 @@ func cmdReport(ctx context.Context, args []string, cio cmdIO) int {
 	if msg := checkReportFlags(*dbPath, *caseNo, *out, *size, set, fs.NArg()); msg != "" {
 		return usageErr(cio, "report", "%s", msg)
 	}
-	if *site != "" {
-		return failErr(cio, "report", fmt.Errorf("unknown site %q: no named release sites are set up; give --elevation-m instead", *site))
-	}
 	store, err := openExisting(ctx, *dbPath)
 	if err != nil {
 		return failErr(cio, "report", err)
 	}
 	defer store.Close()
-	req, err := reportRequest(ctx, store, *caseNo, set, *elev, *temp)
+	req, err := reportRequest(ctx, store, *caseNo, *site, set, *elev, *temp)
 	if err != nil {
 		return failErr(cio, "report", err)
 	}
@@ -76,17 +73,18 @@ func checkReportFlags(db, caseNo, out, size string, set map[string]bool, nargs i
 		return "--case CASE is required"
 	case out == "":
 		return "--out FILE.pdf is required (- for standard output)"
-	case set["site"] && (set["elevation-m"] || set["temp-c"]):
-		return "give either --site or --elevation-m (with --temp-c), not both"
+	case set["site"] && set["elevation-m"]:
+		return "give either --site or --elevation-m, not both"
 	case size != records.PageA4 && size != records.PageLetter:
 		return "--page-size must be A4 or Letter"
 	}
 	return ""
 }
 
-// reportRequest finds the patient and the release site: the centre's own,
-// with the elevation and temperature given on the command line.
-func reportRequest(ctx context.Context, store *records.Store, caseNo string, set map[string]bool, elev, temp float64) (reports.ReportRequest, error) {
+// reportRequest finds the patient and the release site: a named site
+// (records' release sites), or the centre's own with the elevation and
+// temperature given on the command line.
+func reportRequest(ctx context.Context, store *records.Store, caseNo, siteName string, set map[string]bool, elev, temp float64) (reports.ReportRequest, error) {
 	p, err := store.PatientByCase(ctx, caseNo)
 	if errors.Is(err, records.ErrNotFound) {
 		return reports.ReportRequest{}, fmt.Errorf("no patient with case number %q", caseNo)
@@ -95,16 +93,27 @@ func reportRequest(ctx context.Context, store *records.Store, caseNo string, set
 		return reports.ReportRequest{}, err
 	}
 	req := reports.ReportRequest{Patient: p, Now: time.Now(), Cautions: cautionsMD}
-	if !set["elevation-m"] && !set["temp-c"] {
+	var site records.ReportSite
+	switch {
+	case siteName != "":
+		rs, err := store.ReleaseSiteByName(ctx, siteName)
+		if errors.Is(err, records.ErrNotFound) {
+			return req, fmt.Errorf("unknown site %q: name a release site the centre has set up, or give --elevation-m", siteName)
+		}
+		if err != nil {
+			return req, err
+		}
+		site = records.ReportSite{Label: rs.Name, ElevationM: rs.ElevationM}
+	case set["elevation-m"]:
+		site = records.ReportSite{Label: "release site", ElevationM: elev}
+	case set["temp-c"]:
+		s, label, err := store.DefaultSite(ctx)
+		if err != nil {
+			return req, err
+		}
+		site = records.ReportSite{Label: label, ElevationM: s.ElevationM}
+	default:
 		return req, nil
-	}
-	s, label, err := store.DefaultSite(ctx)
-	if err != nil {
-		return req, err
-	}
-	site := records.ReportSite{Label: label, ElevationM: s.ElevationM}
-	if set["elevation-m"] {
-		site.Label, site.ElevationM = "release site", elev
 	}
 	if set["temp-c"] {
 		site.TempC = &temp

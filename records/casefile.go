@@ -11,11 +11,15 @@ import (
 // speciesTable is the shipped species reference, parsed once per process.
 var speciesTable = sync.OnceValues(assess.LoadSpecies)
 
-// SpeciesFor returns the species reference a patient is assessed against.
+// SpeciesFor returns the species reference a patient is assessed against:
+// the shipped row with the centre's overrides (their Sources entries marked
+// centre-setting, with the author), or a species the centre added. Any
+// name the table knows finds it; an unknown one wraps
+// assess.ErrUnknownSpecies.
 func (s *Store) SpeciesFor(ctx context.Context, scientific string) (*assess.Species, error) {
-	t, err := speciesTable()
+	t, err := s.SpeciesTable(ctx)
 	if err != nil {
-		return nil, fmt.Errorf("records: species table: %w", err)
+		return nil, err
 	}
 	sp, err := t.Find(scientific)
 	if err != nil {

@@ -276,10 +276,26 @@ func (s *Store) SetClearance(ctx context.Context, actor User, patientID int64, i
 // be in the future.
 func (s *Store) SetClearanceAt(ctx context.Context, actor User, patientID int64, at time.Time, item assess.ClearanceItem, state assess.ClearanceState, note string) (assess.Clearance, error) {
 	u, err := s.User(ctx, actor.ID)
-	if err != nil || u.Disabled || !u.HasAny(ClearanceRoles...) {
-		if err != nil && !errors.Is(err, ErrNotFound) {
-			return assess.Clearance{}, err
-		}
+	if err != nil && !errors.Is(err, ErrNotFound) {
+		return assess.Clearance{}, err
+	}
+	c, err := clearanceBy(u, at, s.now(), item, state, note)
+	if err != nil {
+		return assess.Clearance{}, err
+	}
+	if _, err := s.AddEntry(ctx, u.ID, NewEntry{PatientID: patientID, Kind: KindClearance, At: c.At, Data: c}); err != nil {
+		return assess.Clearance{}, err
+	}
+	return c, nil
+}
+
+// clearanceBy builds the clearance change u makes at at, with the checks
+// every writer of clearance entries shares: u (as stored, not as a caller
+// claims) must be an enabled vet or rehabilitator (else ErrForbidden), the
+// change must be valid (assess.Clearance.ValidateChange), and at must not be
+// after now. A user holding both roles signs as the vet.
+func clearanceBy(u User, at, now time.Time, item assess.ClearanceItem, state assess.ClearanceState, note string) (assess.Clearance, error) {
+	if u.ID == 0 || u.Disabled || !u.HasAny(ClearanceRoles...) {
 		return assess.Clearance{}, ErrForbidden
 	}
 	role := RoleRehabilitator
@@ -291,11 +307,8 @@ func (s *Store) SetClearanceAt(ctx context.Context, actor User, patientID int64,
 	if err := c.ValidateChange(); err != nil {
 		return assess.Clearance{}, err
 	}
-	if at.After(s.now().Add(5 * time.Minute)) {
+	if at.After(now.Add(5 * time.Minute)) {
 		return assess.Clearance{}, assess.ValidationErrors{{Field: "at", Value: at.Format(time.RFC3339), Message: "a clearance cannot be set in the future"}}
-	}
-	if _, err := s.AddEntry(ctx, u.ID, NewEntry{PatientID: patientID, Kind: KindClearance, At: c.At, Data: c}); err != nil {
-		return assess.Clearance{}, err
 	}
 	return c, nil
 }

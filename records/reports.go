@@ -97,8 +97,9 @@ type ReportStamp struct {
 // numbers the version, calls render with that number and the time, and
 // stores the bytes render returns with their SHA-256 and an audit row, all
 // in one transaction (render runs while the transaction holds the write
-// lock, so two people generating at once get consecutive numbers). An
-// error from render stores nothing.
+// lock, so two people generating at once get consecutive numbers, and no
+// record changes between the reads render makes; render may read the store
+// but must not write to it). An error from render stores nothing.
 func (s *Store) FreezeReport(ctx context.Context, actorID int64, n NewReport, render func(ReportStamp) ([]byte, error)) (ReportVersion, error) {
 	if n.PageSize == "" {
 		n.PageSize = PageA4

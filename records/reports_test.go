@@ -214,3 +214,22 @@ func TestStore_ReportFrozen(t *testing.T) {
 		}
 	}
 }
+
+// TestStore_SignReport_ErrCorrupt: bytes that no longer match their hash
+// (changed behind the application's back, with the guard trigger dropped)
+// cannot be signed.
+func TestStore_SignReport_ErrCorrupt(t *testing.T) {
+	ctx := context.Background()
+	f := newReportFixture(t)
+	v := f.freeze(t)
+	db := f.store.DB()
+	if _, err := db.ExecContext(ctx, `DROP TRIGGER report_versions_no_update`); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := db.ExecContext(ctx, `UPDATE report_versions SET pdf = x'25504446' WHERE id = ?`, v.ID); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := f.store.SignReport(ctx, f.vet, v.ID, records.RoleVet, recordstest.Password, ""); !errors.Is(err, records.ErrReportCorrupt) {
+		t.Errorf("sign a corrupted version: %v, want ErrReportCorrupt", err)
+	}
+}

@@ -46,10 +46,21 @@ func golden(t *testing.T, name string, got []byte) {
 	}
 }
 
+// goldenCautions stands for CAUTIONS.md in the golden file, so that an edit
+// of the cautions does not change it (TestRender_Text prints the real file).
+const goldenCautions = `# Cautions
+## Advice, not a decision
+- The licensed rehabilitator and the veterinarian make every decision; Aloft only advises.
+## Handling
+- Raptors injure handlers mainly with their talons: keep clear of the feet.
+`
+
 // TestRender_Golden pins the report's bytes: fixed dates, catalog sort and
 // no compression make fpdf's output byte-stable.
 func TestRender_Golden(t *testing.T) {
-	pdf := render(t, caseInput(t, "osprey-ready"), testOptions(records.PageA4))
+	in := caseInput(t, "osprey-ready")
+	in.Cautions = goldenCautions
+	pdf := render(t, in, testOptions(records.PageA4))
 	keepPDF(t, "osprey-ready", pdf)
 	golden(t, "report_osprey_ready.pdf", pdf)
 }
@@ -258,6 +269,7 @@ func TestRender_NoRecords(t *testing.T) {
 func signOffSheetInput(t *testing.T) (reports.SignOffSheetInput, []byte) {
 	t.Helper()
 	in := caseInput(t, "osprey-ready")
+	in.Cautions = goldenCautions
 	pdf := render(t, in, testOptions(records.PageA4))
 	sum := sha256.Sum256(pdf)
 	hash := hex.EncodeToString(sum[:])
@@ -274,6 +286,11 @@ func signOffSheetInput(t *testing.T) (reports.SignOffSheetInput, []byte) {
 
 func TestRenderSignOffSheet(t *testing.T) {
 	in, _ := signOffSheetInput(t)
+	if b, err := os.ReadFile(filepath.Join("testdata", "report_osprey_ready.pdf")); err == nil && !*update {
+		if sum := sha256.Sum256(b); hex.EncodeToString(sum[:]) != in.Version.SHA256 {
+			t.Errorf("the sheet names %s, not the SHA-256 of the golden report %x", in.Version.SHA256, sum)
+		}
+	}
 	var buf bytes.Buffer
 	if err := reports.RenderSignOffSheet(&buf, in, testOptions(records.PageA4)); err != nil {
 		t.Fatal(err)

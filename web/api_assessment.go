@@ -18,7 +18,7 @@ type apiError struct {
 }
 
 // handleAssessmentAPI serves GET /api/v1/patients/{case}/assessment
-// [?elevation_m=…&temp_c=…]: the assessment as JSON, byte for byte what
+// [?elevation_m=…|site=NAME][&temp_c=…]: the assessment as JSON, byte for byte what
 // `aloft assess --json` prints for the same case, site and instant (both
 // encode with assess.EncodeAssessment). An unknown case is 404 and a bad
 // site 422, each with a JSON error naming the parameter.
@@ -27,12 +27,15 @@ func (s *Server) handleAssessmentAPI(c echo.Context) error {
 	if err != nil {
 		return err
 	}
-	site, verrs := s.site(c, siteQueryOf(c))
+	cs, verrs, err := s.site(c, siteQueryOf(c))
+	if err != nil {
+		return err
+	}
 	if len(verrs) > 0 {
 		v := verrs[0]
 		return c.JSON(http.StatusUnprocessableEntity, apiError{Error: v.Field + ": " + v.Message, Field: v.Field, Value: v.Value})
 	}
-	a, err := s.assessment(c, p, site)
+	a, err := s.assessment(c, p, cs.site)
 	if err != nil {
 		return err
 	}

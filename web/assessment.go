@@ -27,50 +27,66 @@ func (s *Server) assessmentSections() []patientSection {
 	return []patientSection{s.outcomeSection, s.picturesSection}
 }
 
-// siteQuery is the release site a request names with ?elevation_m= and
-// ?temp_c=, as typed.
+// siteQuery is the release site a request names, as typed: a named
+// release site (?site=), else an elevation (?elevation_m=); either at an
+// air temperature (?temp_c=).
 type siteQuery struct {
-	Elevation, Temp string
+	Name, Elevation, Temp string
 }
 
 // siteQueryOf reads the site parameters of a request.
 func siteQueryOf(c echo.Context) siteQuery {
-	return siteQuery{Elevation: c.QueryParam("elevation_m"), Temp: c.QueryParam("temp_c")}
+	return siteQuery{Name: c.QueryParam("site"), Elevation: c.QueryParam("elevation_m"), Temp: c.QueryParam("temp_c")}
 }
 
 // empty reports whether the request names no site: the centre's is meant.
 func (q siteQuery) empty() bool {
-	return strings.TrimSpace(q.Elevation) == "" && strings.TrimSpace(q.Temp) == ""
+	return strings.TrimSpace(q.Name) == "" && strings.TrimSpace(q.Elevation) == "" && strings.TrimSpace(q.Temp) == ""
 }
 
 // encode returns the query string naming the site, "" for the centre's.
 func (q siteQuery) encode() string {
-	if q.empty() {
-		return ""
-	}
 	v := url.Values{}
-	if t := strings.TrimSpace(q.Elevation); t != "" {
-		v.Set("elevation_m", t)
+	for _, kv := range [][2]string{{"site", q.Name}, {"elevation_m", q.Elevation}, {"temp_c", q.Temp}} {
+		if t := strings.TrimSpace(kv[1]); t != "" {
+			v.Set(kv[0], t)
+		}
 	}
-	if t := strings.TrimSpace(q.Temp); t != "" {
-		v.Set("temp_c", t)
+	if len(v) == 0 {
+		return ""
 	}
 	return "?" + v.Encode()
 }
 
-// site converts the query to a site within the model's range: nil (the
-// centre's) when the query is empty. A missing elevation with a temperature
-// given is the centre's elevation. Errors name the parameter.
-func (s *Server) site(c echo.Context, q siteQuery) (*assess.Site, assess.ValidationErrors) {
+// chosenSite is the release site of a request: nil for the centre's own,
+// with the name of a named release site ("" otherwise).
+type chosenSite struct {
+	site *assess.Site
+	name string
+}
+
+// site resolves the query to a site within the model's range. A named
+// release site wins over an elevation; a temperature alone is at the
+// centre's elevation; an empty query is the centre's site (site nil).
+// Field errors name the parameter (site, elevation_m, temp_c); any other
+// error is internal.
+func (s *Server) site(c echo.Context, q siteQuery) (chosenSite, assess.ValidationErrors, error) {
 	if q.empty() {
-		return nil, nil
+		return chosenSite{}, nil, nil
+	}
+	if strings.TrimSpace(q.Name) != "" {
+		st, name, err := s.siteFromQuery(c)
+		if ve := asValidation(err); ve != nil {
+			return chosenSite{}, ve, nil
+		}
+		return chosenSite{site: st, name: name}, nil, err
 	}
 	var errs assess.ValidationErrors
 	st := assess.Site{}
 	if strings.TrimSpace(q.Elevation) == "" {
 		def, _, err := s.store.DefaultSite(c.Request().Context())
 		if err != nil {
-			return nil, assess.ValidationErrors{{Field: "elevation_m", Message: "give the release site's elevation in metres: the centre has none"}}
+			return chosenSite{}, nil, err
 		}
 		st.ElevationM = def.ElevationM
 	} else if v, verr := parseFloatField("elevation_m", q.Elevation, false); verr != nil {
@@ -84,16 +100,17 @@ func (s *Server) site(c echo.Context, q siteQuery) (*assess.Site, assess.Validat
 	}
 	st.TempC = t
 	if len(errs) > 0 {
-		return nil, errs
+		return chosenSite{}, errs, nil
 	}
 	if err := st.Validate(); err != nil {
-		return nil, asValidation(err)
+		return chosenSite{}, asValidation(err), nil
 	}
-	return &st, nil
+	return chosenSite{site: &st}, nil, nil
 }
 
 // siteLabel names a site in words for the page and the chart: the centre's
-// own, or a release site, with its elevation and temperature.
+// own (site nil) or "a release site", with its elevation and temperature.
+// The what-if page uses it too.
 func (s *Server) siteLabel(c echo.Context, site *assess.Site) string {
 	var st assess.Site
 	name := "a release site"
@@ -110,6 +127,15 @@ func (s *Server) siteLabel(c echo.Context, site *assess.Site) string {
 		temp = strconv.FormatFloat(*st.TempC, 'f', -1, 64) + " °C"
 	}
 	return fmt.Sprintf("%s, %s m, %s", name, strconv.FormatFloat(st.ElevationM, 'f', -1, 64), temp)
+}
+
+// label names a chosen site in words: a named release site by its name.
+func (s *Server) label(c echo.Context, cs chosenSite) string {
+	l := s.siteLabel(c, cs.site)
+	if cs.site != nil && cs.name != "" {
+		l = cs.name + " (release site)" + strings.TrimPrefix(l, "a release site")
+	}
+	return l
 }
 
 // ctxAssessment caches the assessment of a patient at the centre's site for
@@ -168,29 +194,48 @@ func (s *Server) handleAssessment(c echo.Context) error {
 		return err
 	}
 	q := siteQueryOf(c)
-	site, verrs := s.site(c, q)
-	status := http.StatusOK
-	if len(verrs) > 0 {
-		status, site = http.StatusUnprocessableEntity, nil
-	}
-	a, err := s.assessment(c, p, site)
+	cs, verrs, err := s.site(c, q)
 	if err != nil {
 		return err
 	}
-	v := views.AssessmentView{Patient: p, A: a, SiteLabel: s.siteLabel(c, site),
-		Site:    views.SiteForm{Action: "/patients/" + p.CaseNumber + "/assessment", Elevation: q.Elevation, Temp: q.Temp, Errors: verrs},
+	status := http.StatusOK
+	if len(verrs) > 0 {
+		status, cs = http.StatusUnprocessableEntity, chosenSite{}
+	}
+	a, err := s.assessment(c, p, cs.site)
+	if err != nil {
+		return err
+	}
+	v := views.AssessmentView{Patient: p, A: a, SiteLabel: s.label(c, cs),
+		Site:    views.SiteForm{Action: "/patients/" + p.CaseNumber + "/assessment", Name: q.Name, Elevation: q.Elevation, Temp: q.Temp, Errors: verrs},
 		Physics: views.PhysicsRows(a), SiteRows: views.SiteRows(a), ParamRows: views.ParamRows(a),
 		ModelCautions: s.modelCautions()}
-	if strings.TrimSpace(v.Site.Elevation) == "" {
+	if v.Site.Sites, err = s.siteChoices(c); err != nil {
+		return err
+	}
+	if strings.TrimSpace(v.Site.Elevation) == "" && strings.TrimSpace(v.Site.Name) == "" {
 		v.Site.Elevation = strconv.FormatFloat(a.Site.ElevationM, 'f', -1, 64)
 	}
 	query := ""
-	if site != nil {
+	if cs.site != nil {
 		query = q.encode()
 	}
 	v.Power = powerChartView(p, a, v.SiteLabel, query)
 	v.Power.Title = "" // the section's heading names it
 	return render(c, status, views.AssessmentPage(s.meta(c, p.CaseNumber+" assessment"), v))
+}
+
+// siteChoices lists the centre's release sites in use for the site form.
+func (s *Server) siteChoices(c echo.Context) ([]views.SiteChoice, error) {
+	list, err := s.store.ReleaseSites(c.Request().Context(), false)
+	if err != nil {
+		return nil, err
+	}
+	out := make([]views.SiteChoice, 0, len(list))
+	for _, r := range list {
+		out = append(out, views.SiteChoice{Name: r.Name, Label: r.Name + " (" + strconv.FormatFloat(r.ElevationM, 'f', -1, 64) + " m)"})
+	}
+	return out, nil
 }
 
 // modelCautions returns CAUTIONS.md's limits of the flight model.

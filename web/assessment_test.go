@@ -18,7 +18,8 @@ import (
 	"aloft/records/recordstest"
 )
 
-// assessFixture is a logged-in vet at a centre 100 m up, and two patients:
+// assessFixture is a logged-in vet at a centre 100 m up with one named
+// release site, High Moor Gate at 1350 m, and two patients:
 // a female red-tailed hawk with a fortnight of invented records (weigh-ins,
 // a condition score, a wing with a feather map, a takeoff trial, flight
 // sessions), and a Cooper's hawk with none. The clock stands still, so the
@@ -75,6 +76,9 @@ func assessFixture(t *testing.T) (a *testApp, rich, bare records.Patient) {
 			EnclosureName: "Flight cage 1", EnclosureLengthM: &length, Passes: passes, LongestRun: passes - 2,
 			Highest: assess.HeightHighPerch, Landings: passes, LandingsControlled: passes - 1, RecoveryS: &rec,
 			Droop: assess.DroopNone}, records.AddOpts{}))
+	}
+	if _, err := a.store.AddReleaseSite(ctx, 0, records.ReleaseSiteInput{Name: "High Moor Gate", ElevationM: 1350}); err != nil {
+		t.Fatal(err)
 	}
 	return a, rich, bare
 }
@@ -168,6 +172,8 @@ func TestAssessmentPage_MatchesAPI(t *testing.T) {
 		{"RecordedAtCentre", rich, "", 29, true, "100"},
 		{"RecordedHighWarmSite", rich, "?elevation_m=1500&temp_c=25", 30, true, "1500"},
 		{"TemperatureOnly", rich, "?temp_c=-5", 30, true, "100"},
+		{"NamedSite", rich, "?site=High+Moor+Gate&temp_c=8", 30, true, "1350"},
+		{"NamedSiteWinsOverElevation", rich, "?site=High+Moor+Gate&elevation_m=20", 29, true, "1350"},
 		{"NoRecords", bare, "", 7, false, "100"},
 	}
 	for _, tc := range cases {
@@ -303,6 +309,7 @@ func TestAssessmentPage_BadSite(t *testing.T) {
 		{"ErrElevationRange", "?elevation_m=9000", "elevation_m"},
 		{"ErrTemperatureRange", "?elevation_m=100&temp_c=70", "temp_c"},
 		{"ErrTemperatureText", "?temp_c=warm", "temp_c"},
+		{"ErrUnknownSite", "?site=Nowhere+Ridge", "site"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -440,5 +447,29 @@ func TestPatientPage_OutcomeAndPictures(t *testing.T) {
 				t.Errorf("missing charts %q, want %q", missing, tc.missing)
 			}
 		})
+	}
+}
+
+func TestAssessmentPage_NamedSite(t *testing.T) {
+	a, rich, _ := assessFixture(t)
+	resp, doc := a.get("/patients/" + rich.CaseNumber + "/assessment?site=High+Moor+Gate&temp_c=8")
+	wantStatus(t, resp, http.StatusOK)
+	const label = "High Moor Gate (release site), 1350 m, 8 °C"
+	if got := doc.Find("[data-testid=assessment-power] h2").Text(); !strings.Contains(got, label) {
+		t.Errorf("power heading %q lacks %q", got, label)
+	}
+	if got := doc.Find("#site option[selected]").AttrOr("value", ""); got != "High Moor Gate" {
+		t.Errorf("site picker shows %q chosen", got)
+	}
+	src := doc.Find("[data-testid=assessment-power] img.chart").AttrOr("src", "")
+	if !strings.HasSuffix(src, "/charts/power.svg?site=High+Moor+Gate&temp_c=8") {
+		t.Errorf("power chart src %q does not name the site", src)
+	}
+	cresp, err := a.client.Get(a.srv.URL + src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if svg := parseSVGDoc(t, cresp); !strings.Contains(svg.Title, label) {
+		t.Errorf("chart title %q lacks %q", svg.Title, label)
 	}
 }

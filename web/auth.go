@@ -225,9 +225,12 @@ func (s *Server) demoLogins() []views.DemoLogin {
 	return out
 }
 
-// safeNext keeps a post-login redirect on this site.
+// safeNext keeps a post-login redirect on this site. Browsers drop tabs and
+// line breaks inside a URL ("/\t/evil" is "//evil"), so control characters
+// are refused too.
 func safeNext(next string) string {
-	if !strings.HasPrefix(next, "/") || strings.HasPrefix(next, "//") || strings.Contains(next, "\\") {
+	if !strings.HasPrefix(next, "/") || strings.HasPrefix(next, "//") || strings.Contains(next, "\\") ||
+		strings.ContainsFunc(next, func(r rune) bool { return r < 0x20 || r == 0x7f }) {
 		return "/patients"
 	}
 	return next

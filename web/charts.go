@@ -44,7 +44,7 @@ type chartSet struct {
 // chartsFor gathers what the charts of patient p need at site (nil: the
 // centre's); withPower also assesses the patient there, for the power
 // chart, which reads the same assessment as the page.
-func (s *Server) chartsFor(c echo.Context, p records.Patient, site *assess.Site, withPower bool) (*chartSet, error) {
+func (s *Server) chartsFor(c echo.Context, p records.Patient, site chosenSite, withPower bool) (*chartSet, error) {
 	ctx := c.Request().Context()
 	sp, err := s.store.SpeciesFor(ctx, p.SpeciesScientific)
 	if err != nil {
@@ -58,9 +58,9 @@ func (s *Server) chartsFor(c echo.Context, p records.Patient, site *assess.Site,
 	if err != nil {
 		return nil, err
 	}
-	set := &chartSet{p: p, sp: sp, in: in, th: th, siteLabel: s.siteLabel(c, site), now: s.now()}
+	set := &chartSet{p: p, sp: sp, in: in, th: th, siteLabel: s.label(c, site), now: s.now()}
 	if withPower {
-		set.a, set.aErr = s.assessment(c, p, site)
+		set.a, set.aErr = s.assessment(c, p, site.site)
 	}
 	return set, nil
 }
@@ -191,7 +191,7 @@ func powerChartView(p records.Patient, a assess.Assessment, siteLabel, query str
 // site. A chart that fails is logged and replaced by a sentence.
 func (s *Server) picturesSection(c echo.Context, p records.Patient) (views.Section, bool, error) {
 	pics := views.Pictures{Assessment: "/patients/" + p.CaseNumber + "/assessment"}
-	cs, err := s.chartsFor(c, p, nil, true)
+	cs, err := s.chartsFor(c, p, chosenSite{}, true)
 	for _, name := range chartNames {
 		var ch *charts.Chart
 		missing := ""
@@ -217,10 +217,13 @@ func (s *Server) handleChart(c echo.Context, name string) error {
 	if err != nil {
 		return err
 	}
-	var site *assess.Site
+	var site chosenSite
 	if name == "power" {
 		var verrs assess.ValidationErrors
-		if site, verrs = s.site(c, siteQueryOf(c)); len(verrs) > 0 {
+		if site, verrs, err = s.site(c, siteQueryOf(c)); err != nil {
+			return err
+		}
+		if len(verrs) > 0 {
 			return writeSVG(c, http.StatusUnprocessableEntity, messageSVG(verrs[0].Field+": "+verrs[0].Message))
 		}
 	}

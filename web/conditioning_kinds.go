@@ -140,14 +140,14 @@ func parseWing(s *Server, cx *condCtx, f *views.CondForm) (any, time.Time, asses
 func trialKind() condKind {
 	return condKind{kind: records.KindTrial, path: "trials", title: "Takeoff trial", plural: "Trials", button: "Takeoff trial",
 		blank: func(s *Server, cx *condCtx, f *views.CondForm) {
-			r := assess.TrialRulesFor(cx.species, assess.DefaultDropCapM)
+			r := assess.TrialRulesFor(cx.species, s.dropCapM(cx.c))
 			if len(r.SafeModes) > 0 {
 				f.Values["mode"] = string(r.SafeModes[0])
 			}
 			f.Values["wind"] = string(assess.WindCalm)
 		},
 		options: func(s *Server, cx *condCtx, f *views.CondForm) error {
-			r := assess.TrialRulesFor(cx.species, assess.DefaultDropCapM)
+			r := assess.TrialRulesFor(cx.species, s.dropCapM(cx.c))
 			safe := r.SafeModes
 			if safe == nil {
 				safe = assess.TrialModes
@@ -213,7 +213,7 @@ func parseTrial(s *Server, cx *condCtx, f *views.CondForm) (any, time.Time, asse
 		}
 		t.Attempts = append(t.Attempts, assess.AttemptResult(v))
 	}
-	p.merge(t.Validate(assess.TrialRulesFor(cx.species, assess.DefaultDropCapM)))
+	p.merge(t.Validate(assess.TrialRulesFor(cx.species, s.dropCapM(cx.c))))
 	return t, t.At, p.errs
 }
 

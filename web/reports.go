@@ -60,7 +60,11 @@ func (s *Server) reportsPanel(c echo.Context, p records.Patient, gen *views.Repo
 	if err != nil {
 		return views.ReportsPanel{}, err
 	}
-	panel := views.ReportsPanel{Case: p.CaseNumber, CSRF: s.csrfToken(c), CanGenerate: u.HasAny(reportRoles...), Versions: vs,
+	sites, err := s.store.ReleaseSites(ctx, false)
+	if err != nil {
+		return views.ReportsPanel{}, err
+	}
+	panel := views.ReportsPanel{Case: p.CaseNumber, Sites: sites, CSRF: s.csrfToken(c), CanGenerate: u.HasAny(reportRoles...), Versions: vs,
 		DefaultSite: fmt.Sprintf("%s, %s m", site.Label, strconv.FormatFloat(site.ElevationM, 'f', 0, 64)),
 		Generate:    views.ReportForm{PageSize: records.PageA4}, Cautions: s.cautionsAbout("advi")}
 	for _, r := range records.SignOffRoles {
@@ -103,7 +107,8 @@ func (s *Server) renderReports(c echo.Context, status int, p records.Patient, ge
 }
 
 // reportSiteFrom reads the release site and page size of the generate form:
-// the centre's own site unless an elevation is given.
+// one of the centre's release sites, another place by its elevation, or
+// the centre's own site; the air temperature, when given, applies to it.
 func (s *Server) reportSiteFrom(ctx context.Context, f views.ReportForm) (records.ReportSite, assess.ValidationErrors, error) {
 	var errs assess.ValidationErrors
 	site, err := s.defaultReportSite(ctx)
@@ -124,6 +129,21 @@ func (s *Server) reportSiteFrom(ctx context.Context, f views.ReportForm) (record
 		errs = append(errs, &assess.ValidationError{Field: "site_name", Value: name, Message: "keep the name under 120 characters"})
 	case name != "" && elev == nil && errs.Field("elevation_m") == "":
 		errs = append(errs, &assess.ValidationError{Field: "elevation_m", Message: "give the elevation of the named site, in metres"})
+	case f.SiteID != "" && (elev != nil || name != ""):
+		errs = append(errs, &assess.ValidationError{Field: "site_id", Value: f.SiteID,
+			Message: "choose one of the centre's release sites, or give another place's elevation, not both"})
+	}
+	if f.SiteID != "" && len(errs) == 0 {
+		id, perr := strconv.ParseInt(f.SiteID, 10, 64)
+		rs, err := s.store.ReleaseSite(ctx, id)
+		switch {
+		case perr != nil || errors.Is(err, records.ErrNotFound):
+			errs = append(errs, &assess.ValidationError{Field: "site_id", Value: f.SiteID, Message: "choose a release site from the list"})
+		case err != nil:
+			return site, nil, err
+		default:
+			site.Label, site.ElevationM = rs.Name, rs.ElevationM
+		}
 	}
 	if elev != nil {
 		site.ElevationM, site.Label = *elev, "release site"
@@ -151,8 +171,8 @@ func (s *Server) handleGenerateReport(c echo.Context) error {
 		return err
 	}
 	ctx := c.Request().Context()
-	f := views.ReportForm{PageSize: c.FormValue("page_size"), ElevationM: c.FormValue("elevation_m"), TempC: c.FormValue("temp_c"),
-		SiteName: c.FormValue("site_name")}
+	f := views.ReportForm{PageSize: c.FormValue("page_size"), SiteID: c.FormValue("site_id"), ElevationM: c.FormValue("elevation_m"),
+		TempC: c.FormValue("temp_c"), SiteName: c.FormValue("site_name")}
 	if f.PageSize == "" {
 		f.PageSize = records.PageA4
 	}
@@ -202,8 +222,8 @@ func (s *Server) handleReportPreview(c echo.Context) error {
 		return err
 	}
 	ctx := c.Request().Context()
-	f := views.ReportForm{PageSize: c.QueryParam("page_size"), ElevationM: c.QueryParam("elevation_m"), TempC: c.QueryParam("temp_c"),
-		SiteName: c.QueryParam("site_name")}
+	f := views.ReportForm{PageSize: c.QueryParam("page_size"), SiteID: c.QueryParam("site_id"), ElevationM: c.QueryParam("elevation_m"),
+		TempC: c.QueryParam("temp_c"), SiteName: c.QueryParam("site_name")}
 	if f.PageSize == "" {
 		f.PageSize = records.PageA4
 	}
@@ -308,6 +328,10 @@ func (s *Server) handleSignReport(c echo.Context) error {
 		return s.renderReports(c, http.StatusUnprocessableEntity, p, nil, &f)
 	case errors.Is(err, records.ErrConflict):
 		f.Problem = "You have already signed this version in that role; a sign-off cannot be changed. Generate a new version to sign again."
+		return s.renderReports(c, http.StatusConflict, p, nil, &f)
+	case errors.Is(err, records.ErrReportCorrupt):
+		s.log.Error("stored report does not match its hash", "case", p.CaseNumber, "version", v.Version)
+		f.Problem = "The stored file of this version no longer matches its SHA-256, so it cannot be signed. Tell your administrator; nothing was signed."
 		return s.renderReports(c, http.StatusConflict, p, nil, &f)
 	case asValidation(err) != nil:
 		f.Errors = asValidation(err)

@@ -10,6 +10,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -235,19 +236,36 @@ func TestReports_Forms(t *testing.T) {
 		{"ErrTempOutOfRange", url.Values{"elevation_m": {"100"}, "temp_c": {"70"}}, "temp_c"},
 		{"ErrNameWithoutElevation", url.Values{"site_name": {"Ridge"}}, "elevation_m"},
 		{"ErrPageSize", url.Values{"page_size": {"A3"}}, "page_size"},
+		{"ErrUnknownSite", url.Values{"site_id": {"999"}}, "site_id"},
+		{"ErrSiteAndElevation", url.Values{"site_id": {"1"}, "elevation_m": {"50"}}, "site_id"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
 			resp, doc := a.post(base+"/reports", tc.form)
 			wantStatus(t, resp, http.StatusUnprocessableEntity)
-			id := map[string]string{"elevation_m": "report_elevation", "temp_c": "report_temp", "page_size": "report_page"}[tc.field]
-			if msg := doc.Find("#" + id).NextFilteredUntil(".field-error", "label").First().Text(); msg == "" {
+			id := map[string]string{"elevation_m": "report_elevation", "temp_c": "report_temp", "page_size": "report_page",
+				"site_id": "report_site"}[tc.field]
+			if msg := doc.Find("#"+id).NextFilteredUntil(".field-error", "label").First().Text(); msg == "" {
 				t.Errorf("no message beside %s", tc.field)
 			}
 		})
 	}
 	if vs, _ := a.store.ReportVersions(context.Background(), p.ID); len(vs) != 0 {
 		t.Errorf("%d versions stored from refused forms", len(vs))
+	}
+	site, err := a.store.AddReleaseSite(context.Background(), 0, records.ReleaseSiteInput{Name: "Saltmarsh Point", ElevationM: 4})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, doc := a.get(base)
+	if doc.Find("#report_site option").Length() != 2 {
+		t.Errorf("the site list offers %d choices, want the centre and Saltmarsh Point", doc.Find("#report_site option").Length())
+	}
+	resp, _ := a.post(base+"/reports", url.Values{"site_id": {strconv.FormatInt(site.ID, 10)}, "temp_c": {"9"}})
+	wantStatus(t, resp, http.StatusSeeOther)
+	v, err := a.store.ReportVersion(context.Background(), p.ID, 1)
+	if err != nil || v.Site.Label != "Saltmarsh Point" || v.Site.ElevationM != 4 || v.Site.TempC == nil || *v.Site.TempC != 9 {
+		t.Errorf("version 1 stored with site %+v, %v; want Saltmarsh Point, 4 m, 9 °C", v.Site, err)
 	}
 	resp, pdf := a.getRaw(base + "/reports/preview.pdf")
 	wantStatus(t, resp, http.StatusOK)

@@ -47,7 +47,7 @@ func (s *Server) routes() {
 // featureRoutes lists the route sets of the record features, each adding
 // its own routes to the logged-in group.
 func (s *Server) featureRoutes() []func(*echo.Group) {
-	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes, s.chartRoutes, s.assessmentRoutes, s.reportRoutes}
+	return []func(*echo.Group){s.conditioningRoutes, s.clinicalRoutes, s.cageRoutes, s.dispositionRoutes, s.exportRoutes, s.chartRoutes, s.assessmentRoutes, s.reportRoutes, s.settingsRoutes, s.whatIfRoutes}
 }
 
 // sections lists, in page order, the feature blocks of the patient page and

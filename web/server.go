@@ -44,6 +44,12 @@ func New(cfg Config, store *records.Store, species *assess.SpeciesTable) *Server
 	e := echo.New()
 	e.HideBanner, e.HidePort = true, true
 	e.HTTPErrorHandler = s.handleError
+	// The client's address (the login throttle's per-address key) is the
+	// nearest untrusted hop of X-Forwarded-For: a proxy on this host or the
+	// private network appends the real client, so a client cannot choose the
+	// address it is counted under. Echo's default took the header's first,
+	// client-written entry.
+	e.IPExtractor = echo.ExtractIPFromXFFHeader()
 	e.Use(s.recoverMiddleware, securityHeaders, s.loadSession)
 	s.echo = e
 	s.routes()

@@ -179,6 +179,9 @@ func Seed(ctx context.Context, store *records.Store, species *assess.SpeciesTabl
 		}
 		sd.Users[p.Username] = u
 	}
+	if err := seedSettings(ctx, sd); err != nil {
+		return fmt.Errorf("demo: settings: %w", err)
+	}
 	seeders := eventSeeders()
 	for _, dp := range sc.Patients {
 		p, err := admit(ctx, sd, dp)

@@ -1,11 +1,16 @@
 package views
 
 import (
+	"context"
 	"fmt"
+	"html"
+	"io"
 	"math"
 	"strconv"
 	"strings"
 	"time"
+
+	"github.com/a-h/templ"
 
 	"aloft/assess"
 	"aloft/records"
@@ -32,11 +37,16 @@ type AssessmentView struct {
 // SiteForm is the release-site form of the assessment page (a GET form),
 // holding what was typed.
 type SiteForm struct {
-	Action    string // the page's own URL, without a query
-	Elevation string // metres
-	Temp      string // °C; "" for the standard atmosphere
+	Action    string       // the page's own URL, without a query
+	Sites     []SiteChoice // the centre's named release sites
+	Name      string       // the named release site chosen; "" for none
+	Elevation string       // metres, when no named site is chosen
+	Temp      string       // °C; "" for the standard atmosphere
 	Errors    assess.ValidationErrors
 }
+
+// SiteChoice is one named release site of the site form.
+type SiteChoice struct{ Name, Label string }
 
 // OutcomeSummary is the compact outcome block on the patient page.
 type OutcomeSummary struct {
@@ -66,6 +76,31 @@ type Piece struct {
 // words that start with punctuation.
 func (p Piece) Glued() bool {
 	return !p.IsNum() && p.Text != "" && strings.ContainsAny(p.Text[:1], ";:,.)")
+}
+
+// numPieces writes pieces as HTML: each number in a span tagged with its
+// JSON path and scale, followed by its unit; words as text; one space
+// between pieces except before punctuation.
+func numPieces(ps []Piece) templ.Component {
+	return templ.ComponentFunc(func(_ context.Context, w io.Writer) error {
+		var b strings.Builder
+		for i, p := range ps {
+			if i > 0 && !p.Glued() {
+				b.WriteByte(' ')
+			}
+			if !p.IsNum() {
+				b.WriteString(html.EscapeString(p.Text))
+				continue
+			}
+			fmt.Fprintf(&b, `<span class="num" data-testid="num" data-json="%s" data-scale="%s">%s</span>`,
+				html.EscapeString(p.Path), html.EscapeString(p.ScaleAttr()), html.EscapeString(p.Text))
+			if p.Unit != "" {
+				b.WriteString(" " + html.EscapeString(p.Unit))
+			}
+		}
+		_, err := io.WriteString(w, b.String())
+		return err
+	})
 }
 
 // IsNum reports whether the piece is a number.
@@ -205,7 +240,7 @@ func aFedWords(f assess.FedState) string {
 
 // SiteRows lays out the site as assessed.
 func SiteRows(a assess.Assessment) []NumRow {
-	temp := []Piece{aWords("the standard atmosphere's for the elevation")}
+	temp := []Piece{aWords("not given: the standard atmosphere's for the elevation")}
 	if a.Site.TempC != nil {
 		temp = []Piece{aExact("site.temp_c", *a.Site.TempC, "°C")}
 	}
