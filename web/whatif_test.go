@@ -2,6 +2,7 @@ package web
 
 import (
 	"context"
+	"encoding/json"
 	"io"
 	"math"
 	"net/http"
@@ -255,6 +256,28 @@ func TestSites_PageAndNamedSite(t *testing.T) {
 	})
 	if math.Abs(alt-1.1117) > 2e-4 {
 		t.Errorf("the what-if at High Fell: air density %v, want 1.1117 ± 0.0002", alt)
+	}
+	// The assessment API takes the site by name too (issue 10): the same
+	// density as the what-if's.
+	api := func(query string) (int, float64) {
+		resp, err := a.client.Get(a.srv.URL + "/api/v1/patients/" + p.CaseNumber + "/assessment?" + query)
+		if err != nil {
+			t.Fatal(err)
+		}
+		defer resp.Body.Close()
+		var body struct {
+			Site struct {
+				ElevationM float64 `json:"elevation_m"`
+			} `json:"site"`
+		}
+		json.NewDecoder(resp.Body).Decode(&body)
+		return resp.StatusCode, body.Site.ElevationM
+	}
+	if code, el := api("site=High+Fell"); code != http.StatusOK || el != 1000 {
+		t.Errorf("API ?site=High Fell: status %d, elevation %v, want 200 and 1000", code, el)
+	}
+	if code, _ := api("site=Nowhere"); code != http.StatusUnprocessableEntity {
+		t.Errorf("API ?site=Nowhere: status %d, want 422", code)
 	}
 	_, doc = a.get("/sites")
 	edit := doc.Find(`[data-site="High Fell"] [data-testid=edit-site]`).AttrOr("href", "")
