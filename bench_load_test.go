@@ -110,13 +110,14 @@ func TestLoad(t *testing.T) {
 	}
 	mix := discoverMix(t, clients[0], pats)
 	var out strings.Builder
-	fmt.Fprintf(&out, "\nLoad benchmark, %s, GOMAXPROCS %d, %d patients (%d in care)\n",
-		time.Now().Format("2006-01-02 15:04"), runtime.GOMAXPROCS(0), len(pats.all), len(pats.inCare))
+	fmt.Fprintf(&out, "\nLoad benchmark, %s, GOMAXPROCS %d, %d patients (%d in care); load average before: %s\n",
+		time.Now().Format("2006-01-02 15:04"), runtime.GOMAXPROCS(0), len(pats.all), len(pats.inCare), loadAverage())
 	for _, n := range mix.notes {
 		fmt.Fprintf(&out, "note: %s\n", n)
 	}
 	stopProfile := srv.startProfile(t)
-	open := runOpenLoop(mix, clients, set.rate, set.open)
+	bk := &loadBackup{bin: bin, live: db, to: filepath.Join(t.TempDir(), "backup.db")}
+	open := runOpenLoop(mix, clients, set.rate, set.open, bk.run)
 	c8 := runClosedLoop(mix, clients, 8, set.closed)
 	c32 := runClosedLoop(mix, clients, 32, set.closed)
 	stopProfile()
@@ -125,7 +126,9 @@ func TestLoad(t *testing.T) {
 	for _, ph := range []*loadPhase{open, c8, c32, base} {
 		ph.write(&out)
 	}
-	fmt.Fprintf(&out, "server peak memory (VmHWM): %.0f MB; server errors logged: %d\n", float64(peak)/(1<<20), srv.errorLines())
+	fmt.Fprintf(&out, "\nserver peak memory (VmHWM): %.0f MB; server errors logged: %d; load average after: %s\n",
+		float64(peak)/(1<<20), srv.errorLines(), loadAverage())
+	bk.check(t, mix, &out)
 	t.Log(out.String())
 	checkLoadTargets(t, open, []*loadPhase{open, c8, c32}, peak)
 }
@@ -300,6 +303,16 @@ func (s *loadServer) peakRSS() int64 {
 	return 0
 }
 
+// loadAverage is the machine's 1-, 5- and 15-minute load averages: other
+// work on the machine shows in the latencies.
+func loadAverage() string {
+	b, err := os.ReadFile("/proc/loadavg")
+	if f := strings.Fields(string(b)); err == nil && len(f) >= 3 {
+		return strings.Join(f[:3], " ")
+	}
+	return "unknown"
+}
+
 // errorLines counts the errors the server logged.
 func (s *loadServer) errorLines() int { return strings.Count(s.log.String(), "level=ERROR") }
 
@@ -308,6 +321,7 @@ type loadReq struct {
 	route, method, path, body, ctype string
 	header                           map[string]string
 	want                             int
+	key                              string // a flight session's idempotency key
 }
 
 // loadMix draws requests: each route's share of the traffic, the patients
@@ -319,7 +333,8 @@ type loadMix struct {
 	notes   []string
 
 	mu     sync.Mutex
-	charts []string // chart URLs found on pages, newest last
+	charts []string             // chart URLs found on pages, newest last
+	acked  map[string]time.Time // flight sessions stored: idempotency key → when acknowledged
 	seq    atomic.Int64
 }
 
@@ -339,7 +354,7 @@ var (
 // those the app does not serve yet.
 func discoverMix(t *testing.T, c *formClient, pats loadPatientSet) *loadMix {
 	t.Helper()
-	m := &loadMix{pats: pats, weights: map[string]int{}}
+	m := &loadMix{pats: pats, weights: map[string]int{}, acked: map[string]time.Time{}}
 	for r, w := range loadShares {
 		m.weights[r] = w
 	}
@@ -434,10 +449,11 @@ func (m *loadMix) next(rng *rand.Rand, csrf string) loadReq {
 			ctype: "application/x-www-form-urlencoded", want: http.StatusSeeOther}
 	case routeSessionAPI:
 		p := m.patient(rng, true)
-		body := fmt.Sprintf(`{"idempotency_key":"load-%d-%08x","session":{"at":%q,"exercise":"cage","passes":6,"longest_run":4,`+
-			`"highest":"high-perch","landings":2,"landings_controlled":2,"droop":"none"}}`, n, rng.Uint32(), time.Now().UTC().Format(time.RFC3339))
+		key := fmt.Sprintf("load-%d-%08x", n, rng.Uint32())
+		body := fmt.Sprintf(`{"idempotency_key":%q,"session":{"at":%q,"exercise":"cage","passes":6,"longest_run":4,`+
+			`"highest":"high-perch","landings":2,"landings_controlled":2,"droop":"none"}}`, key, time.Now().UTC().Format(time.RFC3339))
 		return loadReq{route: route, method: http.MethodPost, path: "/api/v1/patients/" + p.caseNo + "/flight-sessions", body: body,
-			ctype: "application/json", header: map[string]string{"X-CSRF-Token": csrf}, want: http.StatusCreated}
+			ctype: "application/json", header: map[string]string{"X-CSRF-Token": csrf}, want: http.StatusCreated, key: key}
 	}
 	return get("/patients/" + m.patient(rng, false).caseNo)
 }
@@ -481,10 +497,28 @@ func (m *loadMix) do(ctx context.Context, c *formClient, r loadReq) error {
 	if resp.StatusCode != r.want {
 		return fmt.Errorf("%s %s: status %d, want %d", r.method, r.path, resp.StatusCode, r.want)
 	}
-	if r.route == routePage {
+	switch {
+	case r.route == routePage:
 		m.collect(string(b))
+	case r.key != "":
+		m.mu.Lock()
+		m.acked[r.key] = time.Now()
+		m.mu.Unlock()
 	}
 	return nil
+}
+
+// ackedBefore lists the flight sessions acknowledged before t.
+func (m *loadMix) ackedBefore(t time.Time) []string {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	var out []string
+	for k, at := range m.acked {
+		if at.Before(t) {
+			out = append(out, k)
+		}
+	}
+	return out
 }
 
 // loadPhase is what one phase measured.
@@ -557,7 +591,9 @@ func (ph *loadPhase) write(w io.Writer) {
 // runOpenLoop sends requests at rate per second for d, each on its own
 // goroutine, timed from the instant it was due (so a slow server cannot
 // slow the arrivals down and hide its own latency).
-func runOpenLoop(m *loadMix, clients []*formClient, rate float64, d time.Duration) *loadPhase {
+// during, when not nil, runs on its own goroutine from a quarter of the way
+// in, and the phase waits for it.
+func runOpenLoop(m *loadMix, clients []*formClient, rate float64, d time.Duration, during func()) *loadPhase {
 	ph := newPhase(fmt.Sprintf("open loop at %.0f req/s", rate))
 	rng := rand.New(rand.NewPCG(13, 1))
 	total := int(rate * d.Seconds())
@@ -567,6 +603,10 @@ func runOpenLoop(m *loadMix, clients []*formClient, rate float64, d time.Duratio
 	var wg sync.WaitGroup
 	var inflight atomic.Int64
 	start := time.Now()
+	if during != nil {
+		wg.Add(1)
+		time.AfterFunc(d/4, func() { defer wg.Done(); during() })
+	}
 	for i := 0; i < total && ctx.Err() == nil; i++ {
 		due := start.Add(time.Duration(i) * interval)
 		time.Sleep(time.Until(due))
@@ -675,4 +715,58 @@ func checkLoadTargets(t *testing.T, open *loadPhase, all []*loadPhase, peak int6
 	if peak > targetPeakRSS {
 		t.Errorf("target missed: server peak memory %d MB, want under %d MB", peak>>20, targetPeakRSS>>20)
 	}
+}
+
+// loadBackup is `aloft backup` run against the live database during the
+// open loop (issue 13, item 4).
+type loadBackup struct {
+	bin, live, to string
+	began, ended  time.Time
+	out           string
+	err           error
+}
+
+func (b *loadBackup) run() {
+	ctx, cancel := context.WithTimeout(context.Background(), 5*time.Minute)
+	defer cancel()
+	b.began = time.Now()
+	out, err := aloftCmd(ctx, b.bin, "backup", "--db", b.live, "--to", b.to).CombinedOutput()
+	b.ended, b.out, b.err = time.Now(), strings.TrimSpace(string(out)), err
+}
+
+// check verifies the backup taken under load: the integrity check passes,
+// every flight session acknowledged before it began is in it, and a server
+// restored from it serves.
+func (b *loadBackup) check(t *testing.T, m *loadMix, w io.Writer) {
+	t.Helper()
+	if b.began.IsZero() || b.err != nil {
+		t.Errorf("aloft backup under load: %v %s", b.err, b.out)
+		return
+	}
+	fmt.Fprintf(w, "\nbackup under load: `aloft backup` took %s, during the open loop\n", b.ended.Sub(b.began).Round(time.Millisecond))
+	if err := records.CheckIntegrity(context.Background(), b.to); err != nil {
+		t.Errorf("backup under load: %v", err)
+		return
+	}
+	h, err := sql.Open("sqlite", "file:"+b.to+"?mode=ro")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer h.Close()
+	before, missing := m.ackedBefore(b.began), 0
+	for _, k := range before {
+		var n int
+		if err := h.QueryRow(`SELECT count(*) FROM entries WHERE idempotency_key = ?`, k).Scan(&n); err != nil || n != 1 {
+			missing++
+		}
+	}
+	fmt.Fprintf(w, "  integrity check ok; %d flight sessions acknowledged before it began, %d missing from it\n", len(before), missing)
+	if missing > 0 {
+		t.Errorf("backup under load: %d of %d acknowledged flight sessions missing", missing, len(before))
+	}
+	restored := filepath.Join(filepath.Dir(b.to), "restored.db")
+	runAloft(t, b.bin, "restore", "--from", b.to, "--db", restored)
+	srv := startServer(t, b.bin, restored)
+	srv.stop(t)
+	fmt.Fprintf(w, "  aloft restore of it serves (GET /healthz ok)\n")
 }

@@ -1,6 +1,7 @@
 package web
 
 import (
+	"context"
 	"net/http"
 	"slices"
 	"strings"
@@ -23,8 +24,8 @@ func (s *Server) clearanceSection(c echo.Context, p records.Patient) (views.Sect
 
 // clearanceGroup is the species group of p, or "" when the species is not
 // in the table (then every item is shown).
-func (s *Server) clearanceGroup(p records.Patient) assess.Group {
-	if sp, err := s.findSpecies(p.SpeciesScientific); err == nil {
+func (s *Server) clearanceGroup(ctx context.Context, p records.Patient) assess.Group {
+	if sp, err := s.findSpecies(ctx, p.SpeciesScientific); err == nil {
 		return sp.Group
 	}
 	return ""
@@ -42,7 +43,7 @@ func (s *Server) clearancePanel(c echo.Context, p records.Patient) (views.Cleara
 	if err != nil {
 		return views.ClearancePanel{}, err
 	}
-	apply := assess.ClearanceItemsFor(s.clearanceGroup(p))
+	apply := assess.ClearanceItemsFor(s.clearanceGroup(ctx, p))
 	panel := views.ClearancePanel{Case: p.CaseNumber, History: hist, CSRF: s.csrfToken(c),
 		CanSet: currentUser(c).HasAny(records.ClearanceRoles...), State: string(assess.ClearanceCleared),
 		Cautions: s.cautionsAbout("before release")}
@@ -78,7 +79,7 @@ func (s *Server) handleSetClearance(c echo.Context) error {
 	state := assess.ClearanceState(c.FormValue("state"))
 	note := strings.TrimSpace(c.FormValue("note"))
 	var errs assess.ValidationErrors
-	if item.Valid() && !slices.Contains(assess.ClearanceItemsFor(s.clearanceGroup(p)), item) {
+	if item.Valid() && !slices.Contains(assess.ClearanceItemsFor(s.clearanceGroup(c.Request().Context(), p)), item) {
 		errs = append(errs, &assess.ValidationError{Field: "item", Value: string(item),
 			Message: "this item does not apply to the species: live-prey capture is for raptors and owls"})
 	}

@@ -88,7 +88,7 @@ func (s *Server) condContext(c echo.Context) (*condCtx, error) {
 		return nil, err
 	}
 	cx := &condCtx{c: c, patient: p}
-	if sp, err := s.findSpecies(p.SpeciesScientific); err == nil {
+	if sp, err := s.findSpecies(c.Request().Context(), p.SpeciesScientific); err == nil {
 		cx.species = sp
 	}
 	return cx, nil

@@ -23,7 +23,7 @@ func (s *Server) conditioningSections() []patientSection {
 
 func (s *Server) condCtxFor(c echo.Context, p records.Patient) *condCtx {
 	cx := &condCtx{c: c, patient: p}
-	if sp, err := s.findSpecies(p.SpeciesScientific); err == nil {
+	if sp, err := s.findSpecies(c.Request().Context(), p.SpeciesScientific); err == nil {
 		cx.species = sp
 	}
 	return cx

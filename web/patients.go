@@ -1,6 +1,7 @@
 package web
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"net/http"
@@ -33,11 +34,8 @@ func (s *Server) handlePatients(c echo.Context) error {
 	return render(c, http.StatusOK, views.PatientsList(s.meta(c, "Patients"), pg))
 }
 
-func (s *Server) speciesOptions() []views.SpeciesOption {
-	if s.species == nil {
-		return nil
-	}
-	all := s.species.All()
+func (s *Server) speciesOptions(ctx context.Context) []views.SpeciesOption {
+	all := s.speciesTable(ctx).All()
 	out := make([]views.SpeciesOption, 0, len(all))
 	for _, sp := range all {
 		out = append(out, views.SpeciesOption{Value: sp.CommonName + " (" + sp.ScientificName + ")", Label: sp.ScientificName})
@@ -47,22 +45,45 @@ func (s *Server) speciesOptions() []views.SpeciesOption {
 
 func (s *Server) handleIntakeForm(c echo.Context) error {
 	f := views.IntakeForm{AgeClass: "unknown", Sex: "unknown", FoundDate: s.now().Format(records.DateLayout),
-		SpeciesOptions: s.speciesOptions()}
+		SpeciesOptions: s.speciesOptions(c.Request().Context())}
 	return render(c, http.StatusOK, views.IntakePage(s.meta(c, "Admit a patient"), f))
 }
 
 // findSpecies resolves what was typed in a species field: a datalist entry
 // "Common (Scientific)", a common name or a scientific name.
-func (s *Server) findSpecies(typed string) (*assess.Species, error) {
+func (s *Server) findSpecies(ctx context.Context, typed string) (*assess.Species, error) {
 	t := strings.TrimSpace(typed)
 	if i := strings.LastIndex(t, "("); i > 0 && strings.HasSuffix(t, ")") {
 		t = strings.TrimSpace(t[i+1 : len(t)-1])
 	}
-	if s.species == nil {
-		return nil, assess.ErrUnknownSpecies
-	}
-	return s.species.Find(t)
+	return s.speciesTable(ctx).Find(t)
 }
+
+// speciesFinder is the species reference as the centre uses it.
+type speciesFinder interface {
+	Find(name string) (*assess.Species, error)
+	All() []*assess.Species
+}
+
+// speciesTable returns the centre's species reference: the shipped table with
+// the centre's overrides and added species; the shipped table alone if the
+// overrides cannot be read (logged).
+func (s *Server) speciesTable(ctx context.Context) speciesFinder {
+	t, err := s.store.SpeciesTable(ctx)
+	if err == nil {
+		return t
+	}
+	s.log.Error("species overrides unavailable; using the shipped table", "err", err)
+	if s.species != nil {
+		return s.species
+	}
+	return emptySpecies{}
+}
+
+type emptySpecies struct{}
+
+func (emptySpecies) Find(string) (*assess.Species, error) { return nil, assess.ErrUnknownSpecies }
+func (emptySpecies) All() []*assess.Species               { return nil }
 
 func intakeFormFrom(c echo.Context) views.IntakeForm {
 	return views.IntakeForm{
@@ -76,12 +97,12 @@ func intakeFormFrom(c echo.Context) views.IntakeForm {
 
 // intakeInput converts the form into a store input, collecting every field
 // error at once.
-func (s *Server) intakeInput(f *views.IntakeForm) (records.PatientInput, assess.ValidationErrors) {
+func (s *Server) intakeInput(ctx context.Context, f *views.IntakeForm) (records.PatientInput, assess.ValidationErrors) {
 	var errs assess.ValidationErrors
 	in := records.PatientInput{AgeClass: f.AgeClass, Sex: assess.Sex(f.Sex), FoundDate: strings.TrimSpace(f.FoundDate),
 		FoundPlace: f.FoundPlace, FinderName: f.FinderName, FinderContact: f.FinderContact, Reason: strings.TrimSpace(f.Reason),
 		IntakeCondition: f.IntakeCondition, MassNote: strings.TrimSpace(f.MassNote)}
-	sp, err := s.findSpecies(f.Species)
+	sp, err := s.findSpecies(ctx, f.Species)
 	switch {
 	case strings.TrimSpace(f.Species) == "":
 		errs = append(errs, &assess.ValidationError{Field: "species", Message: "choose the species (type a common or scientific name and pick from the list)"})
@@ -124,14 +145,14 @@ func (s *Server) intakeInput(f *views.IntakeForm) (records.PatientInput, assess.
 
 func (s *Server) handleIntake(c echo.Context) error {
 	f := intakeFormFrom(c)
-	in, errs := s.intakeInput(&f)
+	in, errs := s.intakeInput(c.Request().Context(), &f)
 	if len(errs) > 0 {
-		f.Errors, f.SpeciesOptions = errs, s.speciesOptions()
+		f.Errors, f.SpeciesOptions = errs, s.speciesOptions(c.Request().Context())
 		return render(c, http.StatusUnprocessableEntity, views.IntakePage(s.meta(c, "Admit a patient"), f))
 	}
 	p, err := s.store.AdmitPatient(c.Request().Context(), currentUser(c).ID, in)
 	if ve := asValidation(err); ve != nil {
-		f.Errors, f.SpeciesOptions = ve, s.speciesOptions()
+		f.Errors, f.SpeciesOptions = ve, s.speciesOptions(c.Request().Context())
 		return render(c, http.StatusUnprocessableEntity, views.IntakePage(s.meta(c, "Admit a patient"), f))
 	}
 	if err != nil {
@@ -159,7 +180,7 @@ func (s *Server) handlePatient(c echo.Context) error {
 		return err
 	}
 	pg := views.PatientPage{Patient: p, Audit: audit}
-	if sp, err := s.findSpecies(p.SpeciesScientific); err == nil {
+	if sp, err := s.findSpecies(c.Request().Context(), p.SpeciesScientific); err == nil {
 		pg.Species = speciesRef(sp, p.Sex)
 	}
 	for _, sec := range s.patientSections {

@@ -3,6 +3,7 @@ package web
 import (
 	"bytes"
 	"fmt"
+	"math"
 	"net/http"
 	"net/url"
 	"slices"
@@ -223,7 +224,8 @@ func whatIfWing(base *assess.WingMeasurement, sp *assess.Species, w whatIf, now 
 	return wing, words
 }
 
-func fmtG(x float64) string { return strconv.FormatFloat(x, 'f', -1, 64) }
+// fmtG shows a number to at most one decimal place, without trailing zeros.
+func fmtG(x float64) string { return strconv.FormatFloat(math.Round(x*10)/10, 'f', -1, 64) }
 
 // whatIfRun is one what-if worked out: the assessment as recorded and the
 // what-if's, with their site labels.

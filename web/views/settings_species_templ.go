@@ -866,7 +866,7 @@ func SpeciesFormPage(m Meta, v SpeciesFormView) templ.Component {
 					return templ_7745c5c3_Err
 				}
 			}
-			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 77, "<p class=\"advisory\">These values change the advice for every patient of the species. The veterinarian and the licensed rehabilitator decide.</p>")
+			templ_7745c5c3_Err = templruntime.WriteString(templ_7745c5c3_Buffer, 77, "<p class=\"advisory\">These values change the advice for every patient of the species. The veterinarian and the licensed rehabilitator decide, under local law and the permit's conditions. <a href=\"/cautions\">Read the cautions</a>.</p>")
 			if templ_7745c5c3_Err != nil {
 				return templ_7745c5c3_Err
 			}
