@@ -372,26 +372,40 @@ func TestCrashAndBackup_RealServer(t *testing.T) {
 	t.Run("BackupUnderWriteLoad", func(t *testing.T) { testBackupUnderLoad(t, bin) })
 }
 
+// crashRounds is how many times the crash test kills the server, each
+// time at a different moment of the writes.
+const crashRounds = 3
+
 // testCrashSIGKILL kills the server with SIGKILL while several clients
-// post intakes, restarts it, and checks that every admission it
-// acknowledged is there exactly once, that nothing is half-written, and
-// that SQLite's integrity check passes.
+// post intakes, restarts it, and does so again (crashRounds times); then
+// it checks that every admission the server acknowledged is there exactly
+// once, that nothing is half-written, and that SQLite's integrity check
+// passes after each kill.
 func testCrashSIGKILL(t *testing.T, bin string) {
 	db := filepath.Join(t.TempDir(), "crash.db")
 	runAloft(t, bin, "demo", "--db", db, "--seed-only")
-	srv := startServer(t, bin, db)
-	load := startIntakes(login(t, srv.url, "staff", "demo-staff-2026"), "crash test", 6, 400)
-	if !load.waitAcked(40) {
-		t.Fatalf("fewer than 40 intakes acknowledged in 30 s: %v", load.failed)
-	}
-	load.goingDown()
-	srv.kill()
-	load.stop()
-	if len(load.failed) > 0 {
-		t.Errorf("%d intakes failed while the server was up, e.g. %s", len(load.failed), load.failed[0])
-	}
-	if err := records.CheckIntegrity(context.Background(), db); err != nil {
-		t.Fatalf("after SIGKILL: %v", err)
+	acked, tried := map[string]bool{}, map[string]bool{}
+	for round := 0; round < crashRounds; round++ {
+		srv := startServer(t, bin, db)
+		load := startIntakes(login(t, srv.url, "staff", "demo-staff-2026"), fmt.Sprintf("crash test r%d", round), 6, 400)
+		if want := 15 + 20*round; !load.waitAcked(want) {
+			t.Fatalf("round %d: fewer than %d intakes acknowledged in 30 s: %v", round, want, load.failed)
+		}
+		load.goingDown()
+		srv.kill()
+		load.stop()
+		if len(load.failed) > 0 {
+			t.Errorf("round %d: %d intakes failed while the server was up, e.g. %s", round, len(load.failed), load.failed[0])
+		}
+		if err := records.CheckIntegrity(context.Background(), db); err != nil {
+			t.Fatalf("round %d, after SIGKILL: %v", round, err)
+		}
+		for _, r := range load.ackedBefore(time.Now()) {
+			acked[r] = true
+		}
+		for r := range load.tried {
+			tried[r] = true
+		}
 	}
 	again := startServer(t, bin, db)
 	c := login(t, again.url, "staff", "demo-staff-2026")
@@ -400,15 +414,14 @@ func testCrashSIGKILL(t *testing.T, bin string) {
 	}
 	again.stop(t)
 	present := patientsMarked(t, db, "crash test")
-	acked := load.ackedBefore(time.Now())
-	t.Logf("%d intakes tried, %d acknowledged before the kill, %d stored", len(load.tried), len(acked), len(present))
-	for _, r := range acked {
+	t.Logf("%d kills; %d intakes sent, %d acknowledged, %d stored", crashRounds, len(tried), len(acked), len(present))
+	for r := range acked {
 		if present[r] != 1 {
 			t.Errorf("acknowledged intake %q stored %d times, want 1", r, present[r])
 		}
 	}
 	for r, n := range present {
-		if !load.tried[r] || n != 1 {
+		if !tried[r] || n != 1 {
 			t.Errorf("stored intake %q (%d times) was never sent once", r, n)
 		}
 	}

@@ -32,9 +32,10 @@ var (
 
 // Store is the SQLite database of one centre. It is safe for concurrent use.
 type Store struct {
-	db   *sql.DB
-	path string
-	now  func() time.Time
+	db         *sql.DB
+	path       string
+	now        func() time.Time
+	bcryptCost int // for new password hashes; 0 = bcrypt.DefaultCost
 }
 
 // Options configure Open.
@@ -75,7 +76,7 @@ func Open(ctx context.Context, path string, opts Options) (*Store, error) {
 	if s.now == nil {
 		s.now = time.Now
 	}
-	bcryptCost = opts.BcryptCost
+	s.bcryptCost = opts.BcryptCost
 	if err := s.migrate(ctx); err != nil {
 		db.Close()
 		return nil, err

@@ -29,9 +29,6 @@ const (
 // AllRoles lists the roles in display order.
 var AllRoles = []Role{RoleStaff, RoleRehabilitator, RoleVet, RoleAdmin}
 
-// bcryptCost is set once by Open from Options; tests lower it.
-var bcryptCost int
-
 // MinPasswordLen is the shortest password accepted.
 const MinPasswordLen = 10
 
@@ -115,8 +112,8 @@ func checkPassword(p string) *assess.ValidationError {
 	return nil
 }
 
-func hashPassword(p string) (string, error) {
-	cost := bcryptCost
+func (s *Store) hashPassword(p string) (string, error) {
+	cost := s.bcryptCost
 	if cost == 0 {
 		cost = bcrypt.DefaultCost
 	}
@@ -129,7 +126,7 @@ func (s *Store) AddUser(ctx context.Context, actorID int64, n NewUser) (User, er
 	if err := n.Validate(); err != nil {
 		return User{}, err
 	}
-	hash, err := hashPassword(n.Password)
+	hash, err := s.hashPassword(n.Password)
 	if err != nil {
 		return User{}, fmt.Errorf("records: add user: %w", err)
 	}
@@ -299,7 +296,7 @@ func (s *Store) SetPassword(ctx context.Context, actorID, userID int64, password
 	if err := checkPassword(password); err != nil {
 		return assess.ValidationErrors{err}
 	}
-	hash, err := hashPassword(password)
+	hash, err := s.hashPassword(password)
 	if err != nil {
 		return fmt.Errorf("records: set password: %w", err)
 	}

@@ -28,9 +28,11 @@ import (
 // people — validates again as the engine and the store would validate it,
 // with one audit row for each. Run one with
 //
-//	go test -run '^$' -fuzz '^FuzzIntakeForm$' -fuzztime 60s ./web
+//	go test -run '^$' -fuzz '^FuzzIntakeForm$' -fuzztime 60s -fuzzminimizetime 0s ./web
 //
-// or all of them with .ci/fuzz-all.
+// or all of them with .ci/fuzz-all. (Each input is a request and a
+// transaction: minimising every new input, as go test does by default,
+// takes most of a short run.)
 
 // fzApp is one fuzz target's server, reused for every input.
 type fzApp struct {
