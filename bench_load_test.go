@@ -42,7 +42,7 @@ import (
 // handler for context; it prints p50/p95/p99 per route, throughput, errors
 // and the server's peak memory, and fails on a missed target. Settings:
 //
-//	ALOFT_LOAD_DB=FILE       keep the seeded database here and reuse it (copied per run)
+//	ALOFT_LOAD_DB=FILE       keep the seeded database here and reuse it (copied per run; delete it to reseed)
 //	ALOFT_LOAD_SCALE=20000   patients to seed
 //	ALOFT_LOAD_RATE=50       open-loop requests/s
 //	ALOFT_LOAD_OPEN=40s      open-loop duration; ALOFT_LOAD_CLOSED=10s each closed loop
@@ -103,10 +103,10 @@ func TestLoad(t *testing.T) {
 	db := loadDatabase(t, bin, set)
 	pats := loadPatients(t, db)
 	srv := startLoadServer(t, bin, db, set.profile)
-	clients := make([]*formClient, 8)
+	clients, tr := make([]*formClient, 8), newLoadTransport()
 	for i := range clients {
 		clients[i] = login(t, srv.url, "rehab", "demo-rehab-2026")
-		clients[i].hc.Transport = loadTransport
+		clients[i].hc.Transport = tr
 	}
 	mix := discoverMix(t, clients[0], pats)
 	var out strings.Builder
@@ -231,9 +231,11 @@ func loadPatients(t *testing.T, db string) loadPatientSet {
 	return set
 }
 
-// loadTransport keeps enough idle connections for 32 clients.
-var loadTransport = &http.Transport{MaxIdleConns: 128, MaxIdleConnsPerHost: 128, IdleConnTimeout: time.Minute,
-	DialContext: (&net.Dialer{Timeout: 5 * time.Second}).DialContext}
+// newLoadTransport keeps enough idle connections for 32 clients.
+func newLoadTransport() *http.Transport {
+	return &http.Transport{MaxIdleConns: 128, MaxIdleConnsPerHost: 128, IdleConnTimeout: time.Minute,
+		DialContext: (&net.Dialer{Timeout: 5 * time.Second}).DialContext}
+}
 
 // loadServer is the server under load: a child process, or (profiling)
 // this process.
@@ -732,7 +734,7 @@ func runEchoBaseline(t *testing.T, n int, d time.Duration) *loadPhase {
 	srv := &http.Server{Handler: e, ReadHeaderTimeout: 5 * time.Second}
 	go func() { _ = srv.Serve(ln) }()
 	defer srv.Close()
-	c := &formClient{base: "http://" + ln.Addr().String(), hc: &http.Client{Transport: loadTransport, Timeout: 10 * time.Second}}
+	c := &formClient{base: "http://" + ln.Addr().String(), hc: &http.Client{Transport: newLoadTransport(), Timeout: 10 * time.Second}}
 	m := &loadMix{weights: map[string]int{}}
 	ph := newPhase(fmt.Sprintf("bare Echo handler, closed loop, %d clients (context)", n))
 	deadline := time.Now().Add(d)

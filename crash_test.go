@@ -105,7 +105,7 @@ func startServer(t *testing.T, bin, db string) *aloftServer {
 	if s.url == "" {
 		t.Fatalf("aloft serve printed no address: %s", s.out.String())
 	}
-	resp, err := http.Get(s.url + "/healthz")
+	resp, err := (&http.Client{Timeout: 10 * time.Second}).Get(s.url + "/healthz")
 	if err != nil || resp.StatusCode != http.StatusOK {
 		t.Fatalf("GET /healthz: %v %v", resp, err)
 	}

@@ -32,7 +32,6 @@ type Batch struct {
 	nextEntryID        int64
 	users              map[int64]User   // every account, read before the transaction
 	patients           map[int64]bool   // patient ids known to exist
-	written            int              // rows written, audit rows included
 	now                func() time.Time // the store's clock
 }
 
@@ -86,10 +85,6 @@ func (b *Batch) close() {
 	}
 }
 
-// Written counts the rows the batch has written so far, audit rows
-// included.
-func (b *Batch) Written() int { return b.written }
-
 // Admit registers a new patient, as Store.AdmitPatient does.
 func (b *Batch) Admit(actorID int64, in PatientInput) (Patient, error) {
 	now := b.now()
@@ -104,7 +99,6 @@ func (b *Batch) Admit(actorID int64, in PatientInput) (Patient, error) {
 		return Patient{}, wrapValidation("batch admit", err)
 	}
 	b.patients[p.ID] = true
-	b.written += 2
 	return p, nil
 }
 
@@ -144,7 +138,6 @@ func (b *Batch) AddEntry(actorID int64, n NewEntry) (Entry, error) {
 	}
 	err = b.auditRaw(auditRow{userID: actorID, entity: string(n.Kind), entityID: e.ID, patientID: n.PatientID,
 		action: ActionCreate}, nil, after)
-	b.written++
 	return e, err
 }
 
@@ -221,7 +214,6 @@ func (b *Batch) auditRaw(a auditRow, before, after any) error {
 		nullID(a.patientID), a.action, before, after); err != nil {
 		return fmt.Errorf("records: audit %s %d: %w", a.entity, a.entityID, err)
 	}
-	b.written++
 	return nil
 }
 
@@ -276,7 +268,6 @@ func (b *Batch) Dispose(actorID, patientID int64, in DispositionInput) (Disposit
 	if err != nil {
 		return Disposition{}, wrapValidation("batch dispose", err)
 	}
-	b.written++
 	err = b.audit(auditRow{userID: actorID, entity: "disposition", entityID: d.Key, patientID: p.ID,
 		action: ActionCreate, before: map[string]any{"status": p.Status}, after: d})
 	return d, err

@@ -79,20 +79,17 @@ func (s *Server) enclosureMates(c echo.Context, p records.Patient) ([]views.Cage
 	if err != nil || !ok || strings.TrimSpace(h.EnclosureName) == "" {
 		return nil, "", err
 	}
-	others, err := s.store.Patients(c.Request().Context(), records.PatientFilter{Status: string(assess.DispInCare)})
+	housed, err := s.store.CurrentHousings(c.Request().Context())
+	if err != nil {
+		return nil, "", err
+	}
+	inCare, err := s.store.Patients(c.Request().Context(), records.PatientFilter{Status: string(assess.DispInCare), Limit: 1 << 20})
 	if err != nil {
 		return nil, "", err
 	}
 	var mates []views.CageBird
-	for _, o := range others {
-		if o.ID == p.ID {
-			continue
-		}
-		oh, ok, err := s.currentHousing(c, o.ID)
-		if err != nil {
-			return nil, "", err
-		}
-		if ok && strings.EqualFold(oh.EnclosureName, h.EnclosureName) {
+	for _, o := range inCare {
+		if oh, ok := housed[o.ID]; ok && o.ID != p.ID && strings.EqualFold(oh.EnclosureName, h.EnclosureName) {
 			mates = append(mates, cageBird(o))
 		}
 	}

@@ -10,6 +10,7 @@ import (
 	"net/http/cookiejar"
 	"net/http/httptest"
 	"net/url"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -93,7 +94,7 @@ func (a *fzApp) admit(tb testing.TB) records.Patient {
 }
 
 // fzMark is the last row id of each table an input may write.
-type fzMark struct{ patient, entry, encl, disp, user, audit int64 }
+type fzMark struct{ patient, entry, encl, disp, user, site, report, signoff, audit int64 }
 
 func (a *fzApp) mark(t *testing.T) fzMark {
 	t.Helper()
@@ -102,7 +103,8 @@ func (a *fzApp) mark(t *testing.T) fzMark {
 		table string
 		dst   *int64
 	}{{"patients", &m.patient}, {"entries", &m.entry}, {"enclosures", &m.encl}, {"dispositions", &m.disp},
-		{"users", &m.user}, {"audit_log", &m.audit}} {
+		{"users", &m.user}, {"release_sites", &m.site}, {"report_versions", &m.report}, {"signoffs", &m.signoff},
+		{"audit_log", &m.audit}} {
 		if err := a.store.DB().QueryRow(`SELECT COALESCE(MAX(id), 0) FROM ` + x.table).Scan(x.dst); err != nil {
 			t.Fatal(err)
 		}
@@ -156,7 +158,9 @@ func (a *fzApp) idsSince(t *testing.T, table string, last int64) []int64 {
 
 // checkSince re-validates every row stored since m and counts its audit
 // rows: one per row stored (each record version, patient, enclosure,
-// disposition and person is one change).
+// disposition, person, release site, report version and sign-off is one
+// change; a threshold or species value, kept as one row that changes,
+// counts by its audit rows).
 func (a *fzApp) checkSince(t *testing.T, m fzMark, input string) {
 	t.Helper()
 	ctx := context.Background()
@@ -221,6 +225,31 @@ func (a *fzApp) checkSince(t *testing.T, m fzMark, input string) {
 			t.Fatalf("input %q stored person %+v, which does not validate: %v", input, u, err)
 		}
 	}
+	for _, id := range a.idsSince(t, "release_sites", m.site) {
+		changes++
+		r, err := a.store.ReleaseSite(ctx, id)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := (records.ReleaseSiteInput{Name: r.Name, ElevationM: r.ElevationM, Notes: r.Notes}).Validate(); err != nil {
+			t.Fatalf("input %q stored release site %+v, which does not validate: %v", input, r, err)
+		}
+	}
+	for _, id := range a.idsSince(t, "report_versions", m.report) {
+		changes++
+		v, err := a.store.ReportVersionByID(ctx, id)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := v.Site.Site().Validate(); err != nil || !slices.Contains(records.PageSizes, v.PageSize) || v.SizeBytes == 0 {
+			t.Fatalf("input %q froze report version %+v: site %v", input, v, err)
+		}
+	}
+	changes += len(a.idsSince(t, "signoffs", m.signoff))
+	var settings int
+	a.store.DB().QueryRow(`SELECT count(*) FROM audit_log WHERE id > ? AND entity IN ('threshold_setting', 'species_override')`,
+		m.audit).Scan(&settings)
+	changes += settings
 	if audits := len(a.idsSince(t, "audit_log", m.audit)); audits != changes {
 		t.Fatalf("input %q stored %d rows with %d audit rows, want one each", input, changes, audits)
 	}
@@ -505,4 +534,67 @@ func FuzzLoginForm(f *testing.F) {
 	fzRun(f, fzTarget{public: true, path: func(*fzApp, uint8) string { return "/login" }},
 		fzForms(0, url.Values{"username": {"boss"}, "password": {"wrong"}, "next": {"/patients"}},
 			url.Values{"username": {"boss"}, "password": {recordstest.Password}, "next": {"//evil.example"}})...)
+}
+
+// FuzzCorrectForm corrects a conditioning record of each kind (sel picks
+// it), stored afresh through its form before each input.
+func FuzzCorrectForm(f *testing.F) {
+	var seeds []fzSeed
+	for i, k := range records.ConditioningKinds {
+		v := condValid(k)
+		v.Set("version", "1")
+		seeds = append(seeds, fzForms(uint8(i), v)...)
+	}
+	var key int64
+	fzRun(f, fzTarget{
+		prep: func(t *testing.T, a *fzApp, sel uint8) {
+			k := records.ConditioningKinds[int(sel)%len(records.ConditioningKinds)]
+			if code := a.post(t, a.client, condPath(a.p, k), condValid(k).Encode(), false, a.csrf); code != http.StatusSeeOther {
+				t.Fatalf("store a %s to correct: status %d", k, code)
+			}
+			a.store.DB().QueryRow(`SELECT MAX(entry_key) FROM entries WHERE kind = ?`, string(k)).Scan(&key)
+		},
+		path: func(a *fzApp, _ uint8) string { return condRecordURL(a.p, key, "correct") },
+	}, seeds...)
+}
+
+// FuzzSettingsForms posts the centre's settings forms: sel picks a
+// threshold, its reset, a release site, or a species value.
+func FuzzSettingsForms(f *testing.F) {
+	paths := []string{"/settings/thresholds", "/settings/thresholds/reset", "/sites", "/species/Anas-platyrhynchos/override"}
+	seeds := append(fzForms(0, url.Values{"threshold": {"stale-days"}, "value": {"5"}, "note": {"weekly rounds"}},
+		url.Values{"threshold": {"passes"}, "group": {"raptor"}, "value": {"1e9"}}),
+		fzForms(1, url.Values{"threshold": {"stale-days"}})...)
+	seeds = append(seeds, fzForms(2, url.Values{"name": {"Ridge"}, "elevation_m": {"300"}, "notes": {"gate code"}})...)
+	seeds = append(seeds, fzForms(3, url.Values{"span_mm": {"900"}, "note": {"our own birds"}},
+		url.Values{"span_mm": {"9 m"}, "mass_range_g.male.min": {"1200"}, "mass_range_g.male.max": {"900"}})...)
+	fzRun(f, fzTarget{path: func(_ *fzApp, sel uint8) string { return paths[int(sel)%len(paths)] }}, seeds...)
+}
+
+// FuzzReportForm posts the report forms: sel even freezes a version for
+// review (release site and page size), odd signs version 1 off (role,
+// password, comment).
+func FuzzReportForm(f *testing.F) {
+	seeds := append(fzForms(0, url.Values{"page_size": {"A4"}},
+		url.Values{"page_size": {"Letter"}, "elevation_m": {"600"}, "temp_c": {"-3,5"}, "site_name": {"Ridge meadow"}},
+		url.Values{"page_size": {"A3"}, "elevation_m": {"9000"}, "temp_c": {"70"}}),
+		fzForms(1, url.Values{"role": {"vet"}, "password": {recordstest.Password}, "comment": {"fit to fly"}},
+			url.Values{"role": {"admin"}, "password": {"nope"}})...)
+	fzRun(f, fzTarget{
+		prep: func(t *testing.T, a *fzApp, sel uint8) {
+			var n int
+			a.store.DB().QueryRow(`SELECT count(*) FROM report_versions WHERE patient_id = ?`, a.p.ID).Scan(&n)
+			if sel%2 == 1 && n == 0 {
+				if code := a.post(t, a.client, "/patients/"+a.p.CaseNumber+"/reports", "page_size=A4", false, a.csrf); code != http.StatusSeeOther {
+					t.Fatalf("freeze version 1: status %d", code)
+				}
+			}
+		},
+		path: func(a *fzApp, sel uint8) string {
+			if sel%2 == 1 {
+				return "/patients/" + a.p.CaseNumber + "/reports/1/signoffs"
+			}
+			return "/patients/" + a.p.CaseNumber + "/reports"
+		},
+	}, seeds...)
 }

@@ -161,8 +161,8 @@ func TestSecurity_LoginPostWithoutCSRF(t *testing.T) {
 }
 
 // secEnv is a centre with one patient in care, a second person (the
-// target of the user routes), an API token, an enclosure and, when the
-// report route exists, a frozen report version.
+// target of the user routes), an API token, an enclosure and, when asked
+// for (and the report route exists), a frozen report version.
 type secEnv struct {
 	a                    *testApp
 	p                    records.Patient
@@ -171,7 +171,7 @@ type secEnv struct {
 	reportVersion        bool
 }
 
-func newSecEnv(t *testing.T) *secEnv {
+func newSecEnv(t *testing.T, withReport bool) *secEnv {
 	t.Helper()
 	ctx := context.Background()
 	a := newTestApp(t)
@@ -195,6 +195,9 @@ func newSecEnv(t *testing.T) *secEnv {
 		t.Fatal(err)
 	}
 	e.enclosureID = encl.ID
+	if !withReport {
+		return e
+	}
 	a.login("report.maker", records.RoleStaff)
 	resp, _ := a.post("/patients/"+e.p.CaseNumber+"/reports", url.Values{"page_size": {"A4"}})
 	e.reportVersion = resp.StatusCode == http.StatusSeeOther
@@ -261,7 +264,7 @@ var secGuarded = []struct {
 func TestSecurity_RoleGuards(t *testing.T) {
 	for _, g := range secGuarded {
 		t.Run(g.name, func(t *testing.T) {
-			e := newSecEnv(t)
+			e := newSecEnv(t, g.needsReport)
 			if g.needsReport && !e.reportVersion {
 				t.Skip("no report version")
 			}
@@ -308,7 +311,7 @@ func TestSecurity_RoleGuards(t *testing.T) {
 // a staff member, whatever the form, and writes nothing. (Which other roles
 // may is TestSecurity_RoleGuards's and the settings tests' business.)
 func TestSecurity_StaffCannotChangeSettings(t *testing.T) {
-	e := newSecEnv(t)
+	e := newSecEnv(t, false)
 	var routes []string
 	for _, r := range mutatingRoutes(t, e.a) {
 		_, p, _ := strings.Cut(r, " ")
@@ -545,6 +548,11 @@ func TestSecurity_LoginThrottle(t *testing.T) {
 			a := newTestApp(t)
 			recordstest.AddUser(t, a.store, "kim", records.RoleStaff)
 			recordstest.AddUser(t, a.store, "lee", records.RoleStaff)
+			// Sprayed usernames: real accounts but the last (an unknown name
+			// costs a full-cost bcrypt comparison, slow under -race).
+			for i := range 9 {
+				recordstest.AddUser(t, a.store, fmt.Sprintf("guess%d", i), records.RoleStaff)
+			}
 			for i := range 10 {
 				user, xff := tc.failures(i)
 				if got := secLoginAs(t, a, user, wrong, xff); got != http.StatusUnauthorized {
@@ -559,10 +567,10 @@ func TestSecurity_LoginThrottle(t *testing.T) {
 				}
 			}
 			run(tc.after, "after 10 failures")
-			// Keep trying where blocked, a minute apart, until the window
-			// since the failures has passed.
-			for range 14 {
-				a.clock.Advance(time.Minute)
+			// Keep trying where blocked, every three minutes, until the
+			// window since the failures has passed.
+			for range 4 {
+				a.clock.Advance(3 * time.Minute)
 				for _, s := range tc.after {
 					if s.want == http.StatusTooManyRequests {
 						if got := secLoginAs(t, a, s.user, wrong, s.xff); got != http.StatusTooManyRequests {
@@ -571,7 +579,7 @@ func TestSecurity_LoginThrottle(t *testing.T) {
 					}
 				}
 			}
-			a.clock.Advance(window - 14*time.Minute + time.Second)
+			a.clock.Advance(window - 12*time.Minute + time.Second)
 			run(tc.later, "once the window has passed")
 		})
 	}
@@ -718,7 +726,7 @@ func checkPageHeaders(t *testing.T, what string, h http.Header, chart bool) {
 // answered or refused, carries the security headers; chart documents carry
 // the chart policy, which allows inline styles and no script at all.
 func TestSecurity_HeadersOnEveryRoute(t *testing.T) {
-	e := newSecEnv(t)
+	e := newSecEnv(t, true)
 	a := e.a
 	anon := &http.Client{CheckRedirect: a.client.CheckRedirect}
 	fill := strings.NewReplacer(":case", e.p.CaseNumber, ":kind", string(records.KindDiagnosis), ":key", "1",
