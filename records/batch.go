@@ -7,7 +7,6 @@ import (
 	"errors"
 	"fmt"
 	"strconv"
-	"strings"
 	"time"
 
 	"aloft/assess"
@@ -224,20 +223,12 @@ func (b *Batch) auditRaw(a auditRow, before, after any) error {
 // not be in the future.
 func (b *Batch) SetClearanceAt(actor User, patientID int64, at time.Time, item assess.ClearanceItem, state assess.ClearanceState, note string) (assess.Clearance, error) {
 	u, ok := b.users[actor.ID]
-	if !ok || u.Disabled || !u.HasAny(ClearanceRoles...) {
+	if !ok {
 		return assess.Clearance{}, ErrForbidden
 	}
-	role := RoleRehabilitator
-	if u.Has(RoleVet) {
-		role = RoleVet
-	}
-	c := assess.Clearance{Item: item, State: state, By: u.DisplayName, Role: string(role),
-		At: at.UTC().Truncate(time.Second), Note: strings.TrimSpace(note)}
-	if err := c.ValidateChange(); err != nil {
+	c, err := clearanceBy(u, at, b.now(), item, state, note)
+	if err != nil {
 		return assess.Clearance{}, err
-	}
-	if at.After(b.now().Add(5 * time.Minute)) {
-		return assess.Clearance{}, assess.ValidationErrors{{Field: "at", Value: at.Format(time.RFC3339), Message: "a clearance cannot be set in the future"}}
 	}
 	if _, err := b.AddEntry(u.ID, NewEntry{PatientID: patientID, Kind: KindClearance, At: c.At, Data: c}); err != nil {
 		return assess.Clearance{}, err
