@@ -26,7 +26,7 @@ func cmdReport(ctx context.Context, args []string, cio cmdIO) int {
 	site := fs.String("site", "", "a named release site")
 	elev := fs.Float64("elevation-m", 0, "elevation of the release site, m (default: the centre's)")
 	temp := fs.Float64("temp-c", 0, "air temperature at the release site, °C (default: the standard atmosphere's)")
-	size := fs.String("page-size", records.PageA4, "paper size: A4 or Letter")
+	size := fs.String("page-size", records.PageA4, "paper size: A4 or Letter (default: the centre's setting)")
 	if code, ok := parseFlags(fs, args, cio); !ok {
 		return code
 	}
@@ -40,6 +40,9 @@ func cmdReport(ctx context.Context, args []string, cio cmdIO) int {
 		return failErr(cio, "report", err)
 	}
 	defer store.Close()
+	if ctr, err := store.Centre(ctx); err == nil && ctr.PageSize != "" && !set["page-size"] {
+		*size = ctr.PageSize
+	}
 	req, err := reportRequest(ctx, store, *caseNo, *site, set, *elev, *temp)
 	if err != nil {
 		return failErr(cio, "report", err)

@@ -16,6 +16,7 @@ type Centre struct {
 	Address    string  `json:"address"`
 	ElevationM float64 `json:"elevation_m"` // the default release site's elevation, m
 	IsDemo     bool    `json:"is_demo"`     // a demo database: its logins are public
+	PageSize   string  `json:"page_size"`   // reports' paper: PageA4 or PageLetter ("" = A4)
 }
 
 // Validate checks the centre's details.
@@ -28,6 +29,9 @@ func (c Centre) Validate() error {
 		errs = append(errs, &assess.ValidationError{Field: "elevation_m", Value: fmt.Sprint(c.ElevationM),
 			Message: "elevation is in metres above sea level, from -500 to 5000"})
 	}
+	if c.PageSize != "" && c.PageSize != PageA4 && c.PageSize != PageLetter {
+		errs = append(errs, &assess.ValidationError{Field: "page_size", Value: c.PageSize, Message: "choose A4 or Letter"})
+	}
 	if len(errs) > 0 {
 		return errs
 	}
@@ -37,8 +41,8 @@ func (c Centre) Validate() error {
 // Centre returns the centre's details, or ErrNotFound before set-up.
 func (s *Store) Centre(ctx context.Context) (Centre, error) {
 	var c Centre
-	err := s.db.QueryRowContext(ctx, `SELECT name, address, elevation_m, is_demo FROM centre WHERE id = 1`).
-		Scan(&c.Name, &c.Address, &c.ElevationM, &c.IsDemo)
+	err := s.db.QueryRowContext(ctx, `SELECT name, address, elevation_m, is_demo, page_size FROM centre WHERE id = 1`).
+		Scan(&c.Name, &c.Address, &c.ElevationM, &c.IsDemo, &c.PageSize)
 	if errors.Is(err, sql.ErrNoRows) {
 		return Centre{}, ErrNotFound
 	}
@@ -56,18 +60,21 @@ func (s *Store) SetCentre(ctx context.Context, actorID int64, c Centre) error {
 	return wrapValidation("set centre", s.inTx(ctx, func(tx *sql.Tx) error {
 		var before *Centre
 		var b Centre
-		err := tx.QueryRowContext(ctx, `SELECT name, address, elevation_m, is_demo FROM centre WHERE id = 1`).
-			Scan(&b.Name, &b.Address, &b.ElevationM, &b.IsDemo)
+		err := tx.QueryRowContext(ctx, `SELECT name, address, elevation_m, is_demo, page_size FROM centre WHERE id = 1`).
+			Scan(&b.Name, &b.Address, &b.ElevationM, &b.IsDemo, &b.PageSize)
 		switch {
 		case err == nil:
 			before = &b
 		case !errors.Is(err, sql.ErrNoRows):
 			return err
 		}
-		_, err = tx.ExecContext(ctx, `INSERT INTO centre (id, name, address, elevation_m, is_demo, updated_at) VALUES (1, ?, ?, ?, ?, ?)
+		if c.PageSize == "" {
+			c.PageSize = PageA4
+		}
+		_, err = tx.ExecContext(ctx, `INSERT INTO centre (id, name, address, elevation_m, is_demo, page_size, updated_at) VALUES (1, ?, ?, ?, ?, ?, ?)
 			ON CONFLICT (id) DO UPDATE SET name = excluded.name, address = excluded.address,
-			elevation_m = excluded.elevation_m, is_demo = excluded.is_demo, updated_at = excluded.updated_at`,
-			strings.TrimSpace(c.Name), c.Address, c.ElevationM, c.IsDemo, fmtTime(s.now()))
+			elevation_m = excluded.elevation_m, is_demo = excluded.is_demo, page_size = excluded.page_size, updated_at = excluded.updated_at`,
+			strings.TrimSpace(c.Name), c.Address, c.ElevationM, c.IsDemo, c.PageSize, fmtTime(s.now()))
 		if err != nil {
 			return err
 		}

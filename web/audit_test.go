@@ -238,6 +238,9 @@ var auditSteps = []auditStep{
 	{route: "POST /settings/thresholds", do: func(e *audEnv) *http.Response {
 		return e.post("/settings/thresholds", url.Values{"threshold": {"stale-days"}, "value": {"5"}, "note": {"weekly rounds"}})
 	}},
+	{route: "POST /settings/centre", do: func(e *audEnv) *http.Response {
+		return e.post("/settings/centre", url.Values{"centre_name": {"Audit Centre"}, "address": {"1 Lane"}, "elevation_m": {"120"}, "page_size": {"Letter"}})
+	}},
 	{route: "POST /settings/thresholds/reset", do: func(e *audEnv) *http.Response {
 		return e.post("/settings/thresholds/reset", url.Values{"threshold": {"stale-days"}})
 	}},

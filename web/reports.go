@@ -66,7 +66,7 @@ func (s *Server) reportsPanel(c echo.Context, p records.Patient, gen *views.Repo
 	}
 	panel := views.ReportsPanel{Case: p.CaseNumber, Sites: sites, CSRF: s.csrfToken(c), CanGenerate: u.HasAny(reportRoles...), Versions: vs,
 		DefaultSite: fmt.Sprintf("%s, %s m", site.Label, strconv.FormatFloat(site.ElevationM, 'f', 0, 64)),
-		Generate:    views.ReportForm{PageSize: records.PageA4}, Cautions: s.cautionsAbout("advi")}
+		Generate:    views.ReportForm{PageSize: s.centrePageSize(ctx)}, Cautions: s.cautionsAbout("advi")}
 	for _, r := range records.SignOffRoles {
 		if u.Has(r) {
 			panel.SignRoles = append(panel.SignRoles, r)
@@ -174,7 +174,7 @@ func (s *Server) handleGenerateReport(c echo.Context) error {
 	f := views.ReportForm{PageSize: c.FormValue("page_size"), SiteID: c.FormValue("site_id"), ElevationM: c.FormValue("elevation_m"),
 		TempC: c.FormValue("temp_c"), SiteName: c.FormValue("site_name")}
 	if f.PageSize == "" {
-		f.PageSize = records.PageA4
+		f.PageSize = s.centrePageSize(c.Request().Context())
 	}
 	site, errs, err := s.reportSiteFrom(ctx, f)
 	if err != nil {
@@ -225,7 +225,7 @@ func (s *Server) handleReportPreview(c echo.Context) error {
 	f := views.ReportForm{PageSize: c.QueryParam("page_size"), SiteID: c.QueryParam("site_id"), ElevationM: c.QueryParam("elevation_m"),
 		TempC: c.QueryParam("temp_c"), SiteName: c.QueryParam("site_name")}
 	if f.PageSize == "" {
-		f.PageSize = records.PageA4
+		f.PageSize = s.centrePageSize(c.Request().Context())
 	}
 	site, errs, err := s.reportSiteFrom(ctx, f)
 	if err != nil {
@@ -340,4 +340,12 @@ func (s *Server) handleSignReport(c echo.Context) error {
 		return err
 	}
 	return c.Redirect(http.StatusSeeOther, fmt.Sprintf("/patients/%s#report-v%d", p.CaseNumber, v.Version))
+}
+
+// centrePageSize is the centre's paper size for reports (A4 when unset).
+func (s *Server) centrePageSize(ctx context.Context) string {
+	if ctr, err := s.store.Centre(ctx); err == nil && ctr.PageSize != "" {
+		return ctr.PageSize
+	}
+	return records.PageA4
 }

@@ -22,6 +22,8 @@ func (s *Server) settingsRoutes(g *echo.Group) {
 	g.GET("/settings/thresholds", s.handleThresholds, admin)
 	g.POST("/settings/thresholds", s.handleSetThreshold, admin)
 	g.POST("/settings/thresholds/reset", s.handleResetThreshold, admin)
+	g.GET("/settings/centre", s.handleCentreForm, admin)
+	g.POST("/settings/centre", s.handleSetCentre, admin)
 	s.speciesRoutes(g)
 	s.siteRoutes(g)
 }
