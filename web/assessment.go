@@ -1,7 +1,10 @@
 package web
 
 import (
+	"context"
+	"errors"
 	"fmt"
+	"log/slog"
 	"net/http"
 	"net/url"
 	"strconv"
@@ -167,7 +170,11 @@ func (s *Server) assessment(c echo.Context, p records.Patient, site *assess.Site
 // person sees instead of the assessment.
 func (s *Server) failedSentence(c echo.Context, what string, err error) string {
 	id := incidentID()
-	s.log.Error("assessment failed", "incident", id, "path", c.Request().URL.Path, "err", err)
+	level := slog.LevelError
+	if errors.Is(err, context.Canceled) {
+		level = slog.LevelInfo // the person left before the page was ready: not a fault
+	}
+	s.log.Log(c.Request().Context(), level, "assessment failed", "incident", id, "path", c.Request().URL.Path, "err", err)
 	return fmt.Sprintf("The %s could not be worked out from these records. If it persists, quote incident %s to your administrator.", what, id)
 }
 
